@@ -7,7 +7,7 @@ answered from that view:
 
 * :func:`between` / :func:`surroundings`: every *other* path that joins two
   nets (simple paths, shortest first, at most :data:`MAX_PATH_PARTS` parts
-  long and :data:`MAX_PATHS` in number), each with its parts in order and
+  long and :data:`MAX_PATHS` of each kind), each with its parts in order and
   grouped by what it is made of (:data:`PATH_KINDS`);
 * :func:`equivalent_resistance`: the DC resistance of the rest of the board
   between two nets (Klein & Randic, "Resistance distance", J. Math. Chem. 12
@@ -65,14 +65,14 @@ __all__ = [
 #: loading network; longer chains carry negligible current in a tester step.
 MAX_PATH_PARTS = 8
 
-#: Most paths reported for one pair of nets (shortest first); the rest are
-#: cut and :attr:`Between.truncated` says so.
-MAX_PATHS = 100
+#: Most paths reported per kind for one pair of nets (shortest first); the
+#: rest are cut and :attr:`Between.cut` names the kinds that were.
+MAX_PATHS = 50
 
-#: Upper bound on search steps (partial paths extended) for one pair of
-#: nets, so a dense board cannot stall the search; reaching it also sets
-#: :attr:`Between.truncated`.
-MAX_SEARCH_STEPS = 200_000
+#: Upper bound on search steps (partial paths extended) per kind and pair
+#: of nets, so a dense board cannot stall the search; reaching it also
+#: counts as cut.
+MAX_SEARCH_STEPS = 50_000
 
 #: A resistor (or an inductor's winding resistance) below this many ohms
 #: acts as a wire: against the tester's ~700 ohm and 470 kohm drive
@@ -274,11 +274,19 @@ class Path:
         return float(sum(float(k.value) for k in self.links))  # type: ignore[arg-type]
 
     @property
+    def blocks_dc(self) -> bool:
+        """True when a capacitor or a MOSFET gate on the path stops DC (it
+        still passes current while it charges)."""
+        return any(k.nature in ("C", "gate") for k in self.links)
+
+    @property
     def conducts(self) -> str:
-        """Which way the path's junctions let DC through at low voltage:
-        ``"both"`` (no junction with a direction), ``"forward"`` (from
-        ``nets[0]`` to ``nets[-1]``), ``"reverse"``, or ``"neither"``
-        (junctions facing each other)."""
+        """Which way the path's junctions let current through below their
+        breakdown: ``"both"`` (no junction with a direction), ``"forward"``
+        (from ``nets[0]`` to ``nets[-1]``), ``"reverse"``, or ``"neither"``
+        (junctions facing each other). Capacitors are ignored here (see
+        :attr:`blocks_dc`): a probe charges a capacitor through a diode
+        in the diode's forward direction only."""
         flags = {k.forward for k in self.links if k.forward is not None}
         if not flags:
             return "both"
@@ -308,6 +316,7 @@ class Path:
             "dc_resistance": self.dc_resistance,
             "capacitance": self.capacitance,
             "conducts": self.conducts,
+            "blocks_dc": self.blocks_dc,
             "links": [
                 {"part": k.part, "kind": k.kind, "via": list(k.via), "nets": list(k.nets),
                  "nature": k.nature, "value": k.value, "unit": k.unit, "model": k.model,
@@ -325,15 +334,24 @@ class Between:
     plain pair of nets). ``equivalent_resistance`` is the DC resistance of
     the resistors and inductors of the rest of the board (inf when they do
     not connect the nets). ``tied`` says the two nets are one tied group.
+    ``cut`` names the kinds whose list reached :data:`MAX_PATHS` (or the
+    search step limit): more paths of that kind exist than are listed.
+    Paths longer than :data:`MAX_PATH_PARTS` are never listed (their
+    resistors still count in ``equivalent_resistance``).
     """
 
     nets: tuple[str, str]
     paths: tuple[Path, ...]
-    truncated: bool
+    cut: tuple[str, ...]
     equivalent_resistance: float
     tied: bool = False
     pins: tuple[str, ...] = ()
     without: tuple[str, ...] = ()
+
+    @property
+    def truncated(self) -> bool:
+        """True when some kind's list was cut."""
+        return bool(self.cut)
 
     def by_kind(self) -> dict[str, tuple[Path, ...]]:
         """Paths grouped by kind, in :data:`PATH_KINDS` order (kinds present only)."""
@@ -346,7 +364,7 @@ class Between:
             "pins": list(self.pins),
             "tied": self.tied,
             "equivalent_resistance": _json_float(self.equivalent_resistance),
-            "truncated": self.truncated,
+            "cut": list(self.cut),
             "paths": {k: [p.to_dict() for p in v] for k, v in self.by_kind().items()},
         }
 
@@ -513,26 +531,46 @@ def _make_path(links: tuple[Link, ...], start: str) -> Path:
     return Path(kind, tuple(k.part for k in links), nets, dc, links)
 
 
-def _search(board: Board, a: str, b: str, skip: frozenset[str]) -> tuple[list[Path], bool]:
+#: What each kind's search may cross; a kind keeps only the paths that
+#: classify as that kind (a mixed search also meets resistive paths).
+_STAGES = (
+    ("resistive", frozenset({"R"})),
+    ("capacitive", frozenset({"C", "gate"})),
+    ("inductive", frozenset({"L"})),
+    ("mixed", frozenset({"R", "C", "L", "gate"})),
+    ("junction", frozenset({"R", "C", "L", "gate", "junction"})),
+    ("chip", frozenset({"R", "C", "L", "gate", "junction", "chip"})),
+)
+
+
+def _adjacency(board: Board, skip: frozenset[str]) -> dict[str, list[tuple[str, Link]]]:
     adj: dict[str, list[tuple[str, Link]]] = {}
     for e in _edges(board, skip):
+        dcr = e.part.params.get("dcr") if e.part.kind == "L" else None
         for (u, v), (ru, rv), fwd in (
             (e.nets, e.roles, {"a": True, "b": False, None: None}[e.forward]),
             (e.nets[::-1], e.roles[::-1], {"a": False, "b": True, None: None}[e.forward]),
         ):
-            dcr = e.part.params.get("dcr") if e.part.kind == "L" else None
             link = Link(e.part.name, e.part.kind, (ru, rv), (u, v), e.nature, e.part.value,
                         e.part.model, e.part.tolerance, fwd, float(dcr) if dcr else None)  # type: ignore[arg-type]
             adj.setdefault(u, []).append((v, link))
-    # hop distance to b bounds how far each net still is from the target
+    return adj
+
+
+def _search_kind(adj: dict[str, list[tuple[str, Link]]], a: str, b: str, kind: str,
+                 natures: frozenset[str]) -> tuple[list[Path], bool]:
+    """Paths of one kind, shortest first (iterative deepening, pruned by the
+    hop distance to ``b``); True when the count or step limit cut the list."""
+    sub = {u: [(v, k) for v, k in links if k.nature in natures] for u, links in adj.items()}
     g = nx.Graph()
-    g.add_edges_from((u, v) for u, links in adj.items() for v, _ in links)
-    if a not in g or b not in g:
-        return [], False
+    g.add_nodes_from((a, b))
+    g.add_edges_from((u, v) for u, links in sub.items() for v, _ in links)
     dist = nx.single_source_shortest_path_length(g, b, cutoff=MAX_PATH_PARTS)
+    if a not in dist:
+        return [], False
     found: list[Path] = []
     steps = 0
-    for length in range(1, MAX_PATH_PARTS + 1):
+    for length in range(dist[a], MAX_PATH_PARTS + 1):
         stack: list[tuple[str, tuple[Link, ...], frozenset[str], frozenset[str]]] = [
             (a, (), frozenset((a,)), frozenset())
         ]
@@ -540,26 +578,40 @@ def _search(board: Board, a: str, b: str, skip: frozenset[str]) -> tuple[list[Pa
             net, links, visited, used = stack.pop()
             steps += 1
             if steps > MAX_SEARCH_STEPS:
-                return _ordered(found), True
+                return found, True
             depth = len(links)
-            for nxt, link in reversed(adj.get(net, ())):
+            for nxt, link in reversed(sub.get(net, ())):
                 if link.part in used:
                     continue
                 if nxt == b:
                     if depth + 1 == length:
-                        found.append(_make_path(links + (link,), a))
-                        if len(found) >= MAX_PATHS:
-                            return _ordered(found), True
+                        path = _make_path(links + (link,), a)
+                        if path.kind == kind:
+                            found.append(path)
+                            if len(found) >= MAX_PATHS:
+                                return found, True
                     continue
                 if nxt in visited or depth + 1 + dist.get(nxt, MAX_PATH_PARTS + 1) > length:
                     continue
                 stack.append((nxt, links + (link,), visited | {nxt}, used | {link.part}))
-    return _ordered(found), False
+    return found, False
+
+
+def _search(board: Board, a: str, b: str, skip: frozenset[str]) -> tuple[list[Path], tuple[str, ...]]:
+    adj = _adjacency(board, skip)
+    paths: list[Path] = []
+    cut: list[str] = []
+    for kind, natures in _STAGES:
+        found, was_cut = _search_kind(adj, a, b, kind, natures)
+        paths.extend(found)
+        if was_cut:
+            cut.append(kind)
+    return _ordered(paths), tuple(cut)
 
 
 def _ordered(paths: list[Path]) -> list[Path]:
     rank = {k: i for i, k in enumerate(PATH_KINDS)}
-    return sorted(paths, key=lambda p: (rank[p.kind], len(p.parts), p.parts))
+    return sorted(paths, key=lambda p: (rank[p.kind], len(p.parts), p.dc_resistance or 0.0, p.parts))
 
 
 def _check_net(board: Board, net: str) -> str:
@@ -581,11 +633,11 @@ def between(board: Board, net_a: str, net_b: str, without: Iterable[str] = (),
     """
     a, b = _check_net(board, net_a), _check_net(board, net_b)
     skip = frozenset(n.upper() for n in without)
-    paths, truncated = _search(board, a, b, skip) if a != b else ([], False)
+    paths, cut = _search(board, a, b, skip) if a != b else ([], ())
     rest = Board(board.name, tuple(p for p in board.parts if p.name not in skip))
     tied = a == b or any({a, b} <= group for group in tied_nets(rest))
     return Between(
-        (a, b), tuple(paths), truncated,
+        (a, b), tuple(paths), cut,
         equivalent_resistance(board, a, b, skip), tied, pins, tuple(sorted(skip)),
     )
 

@@ -248,9 +248,13 @@ def test_paths_around_a_resistor_exact_set():
 
 def test_paths_match_networkx_simple_paths():
     # Every simple path up to MAX_PATH_PARTS found by networkx, and no other.
+    # Each path has exactly one kind, so the kinds together must list them all.
     rng = random.Random(3)
     nets = [f"N{i}" for i in range(6)]
-    parts = [R(f"R{i}", *rng.sample(nets, 2), 1e3) for i in range(12)]
+    makers = [lambda n, a, z: R(n, a, z, 1e3), lambda n, a, z: C(n, a, z, 1e-9),
+              lambda n, a, z: L(n, a, z, 1e-6), lambda n, a, z: D(n, a, z)]
+    parts = [R("R0", "N0", "N1", 1e3)]
+    parts += [rng.choice(makers)(f"P{i}", *rng.sample(nets, 2)) for i in range(11)]
     b = Board("t", tuple(parts))
     a, z = parts[0].pins
     g = board_graph(b, without=[parts[0].name])
@@ -259,8 +263,10 @@ def test_paths_match_networkx_simple_paths():
     found = surroundings(b, parts[0].name)
     assert not found.truncated
     assert {p.parts for p in found.paths} == expected
-    lengths = [len(p.parts) for p in found.paths]
-    assert lengths == sorted(lengths)  # one kind here: shortest first
+    assert len({p.kind for p in found.paths}) >= 3
+    for group in found.pairs[0].by_kind().values():
+        lengths = [len(p.parts) for p in group]
+        assert lengths == sorted(lengths)  # shortest first within a kind
 
 
 def test_transistor_pairs_and_junction_directions():
@@ -297,13 +303,16 @@ def test_mosfet_gate_is_capacitive_and_body_junction_on_drain_source():
     assert drain[("M1",)].kind == "junction" and drain[("M1",)].conducts == "reverse"
 
 
-def test_truncation_keeps_the_shortest_paths():
-    parts = [R("R0", "A", "B", 1e3), R("RX", "A", "M", 1.0), R("RY", "M", "B", 1.0)]
+def test_truncation_is_per_kind_and_keeps_the_shortest_paths():
+    parts = [R("R0", "A", "B", 1e3), R("RX", "A", "M", 1.0), R("RY", "M", "B", 1.0),
+             C("CX", "A", "N", 1e-9), C("CY", "N", "B", 1e-9)]
     parts += [C(f"C{i}", "A", "B", 1e-9) for i in range(MAX_PATHS + 20)]
     s = surroundings(Board("t", tuple(parts)), "R0")
-    assert s.truncated
-    assert len(s.paths) == MAX_PATHS
-    assert all(len(p.parts) == 1 for p in s.paths)  # the two-part path came later and was cut
+    assert s.truncated and s.pairs[0].cut == ("capacitive",)
+    groups = s.pairs[0].by_kind()
+    assert len(groups["capacitive"]) == MAX_PATHS
+    assert all(len(p.parts) == 1 for p in groups["capacitive"])  # CX-CY came later and was cut
+    assert [p.parts for p in groups["resistive"]] == [("RX", "RY")]  # another kind is unaffected
 
 
 def test_paths_longer_than_the_limit_are_not_listed_but_conduct():
