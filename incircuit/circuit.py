@@ -66,6 +66,14 @@ class Circuit:
 UNMODELLED_EXPANDERS: list[Callable[[Part, Board], tuple[Element, ...] | None]] = []
 
 
+def _register_pin_roles() -> None:
+    """Register the pin-role model of ``incircuit.chips`` (a higher layer,
+    so it is loaded on first use, never when this module is imported)."""
+    from .chips.pinmodels import register
+
+    register()
+
+
 def _series_split(part: Part, kind: str, key: str, suffix: str) -> tuple[Element, ...]:
     """The part plus an optional series resistor given by ``params[key]``."""
     extra = part.params.get(key)
@@ -89,6 +97,7 @@ def _expand(part: Part, board: Board) -> tuple[Element, ...]:
         model = board.models.get(part.model or "")
         return (Element(part.name, part.kind, part.pins, part.value, model, part.params, part.name),)
     if part.kind == "X":
+        _register_pin_roles()
         for expander in UNMODELLED_EXPANDERS:
             found = expander(part, board)
             if found is not None:
