@@ -8,8 +8,16 @@ rail). Nothing else is guessed: every other pin stays ``unknown`` and is
 treated as open. Hierarchical prefixes of exported net names (``/power/``)
 are ignored.
 
+Rail guesses would give a connector, switch, crystal or fuse on a supply
+net the clamp diode of a chip, so they are not made for parts whose
+reference designator has one of the class letters in
+:data:`NOT_CHIP_DESIGNATORS` (reference designators per IEEE 315 / ASME
+Y14.44; the SPICE letter ``X`` in front is skipped): those stay unknown.
+
 >>> rail_role("+3V3"), rail_role("/PSU/AGND"), rail_role("V-"), rail_role("PA3")
 ('supply', 'ground', 'ground', None)
+>>> designator_class("XJ2"), designator_class("U7"), designator_class("X1")
+('J', 'U', 'X')
 """
 
 from __future__ import annotations
@@ -19,7 +27,8 @@ import re
 from ..model import Part
 from .roles import UNKNOWN
 
-__all__ = ["SUPPLY_PATTERNS", "GROUND_PATTERNS", "rail_role", "guess_roles"]
+__all__ = ["SUPPLY_PATTERNS", "GROUND_PATTERNS", "NOT_CHIP_DESIGNATORS", "rail_role",
+           "designator_class", "guess_roles"]
 
 #: A name matching one of these (whole name, case-insensitive) is a supply rail.
 SUPPLY_PATTERNS = (
@@ -37,6 +46,11 @@ GROUND_PATTERNS = (
     r"-\d+(\.\d+)?V\d*",  # -5V, -12V
     r"0",
 )
+#: Designator class letters of parts that are not chips: connectors (J P CN
+#: CON), jumpers and test points (JP TP), switches (S SW), crystals (Y XTAL),
+#: fuses and filters (F FB FL), batteries (BT), relays (K).
+NOT_CHIP_DESIGNATORS = frozenset({"J", "P", "CN", "CON", "CONN", "JP", "TP", "S", "SW", "Y", "XTAL",
+                                  "F", "FB", "FL", "BT", "K"})
 _SUPPLY = re.compile("|".join(f"(?:{p})" for p in SUPPLY_PATTERNS), re.IGNORECASE)
 _GROUND = re.compile("|".join(f"(?:{p})" for p in GROUND_PATTERNS), re.IGNORECASE)
 
@@ -53,15 +67,25 @@ def rail_role(name: str) -> str | None:
     return None
 
 
+def designator_class(name: str) -> str:
+    """The leading letters of a reference designator, after a SPICE ``X``."""
+    body = name[1:] if len(name) > 2 and name[0] in "Xx" and name[1].isalpha() else name
+    m = re.match(r"[A-Za-z]+", body)
+    return m.group(0).upper() if m else ""
+
+
 def guess_roles(part: Part, names: tuple[str, ...] = ()) -> tuple[tuple[str, ...], tuple[str, ...]]:
     """Guessed roles of ``part``'s pins and what each guess rests on.
 
     ``names`` are pin names when known (a pin name is tried before the net
-    name). Returns (roles, basis): the role or ``"unknown"`` per pin, and a
+    name). A part whose designator class is not a chip's gets no guesses. Returns (roles, basis): the role or ``"unknown"`` per pin, and a
     short phrase per pin such as ``"net +5V"`` or ``""`` when not guessed.
     """
     roles: list[str] = []
     basis: list[str] = []
+    if designator_class(part.name) in NOT_CHIP_DESIGNATORS:
+        n = len(part.pins)
+        return (UNKNOWN,) * n, ("",) * n
     for i, net in enumerate(part.pins):
         pin_name = names[i] if i < len(names) else ""
         role = rail_role(pin_name)

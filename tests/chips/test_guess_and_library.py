@@ -115,3 +115,13 @@ def test_interconnect_parts(model, role):
     n = 4 if role == "open" and model.startswith(("CONN", "HEADER")) else 2
     p = _roles(model, tuple(f"N{i}" for i in range(1, n + 1)))
     assert p["roles"] == (role,) * n
+
+
+def test_no_rail_guess_for_connectors_switches_crystals_and_fuses():
+    # designator classes per IEEE 315 / ASME Y14.44: J connector, SW switch, Y crystal, F fuse
+    parts = tuple(Part(n, "X", ("+3V3", "GND"), model="ODD") for n in ("XJ2", "XSW1", "Y1", "XF1"))
+    board = apply_pin_roles(Board("b", parts + (Part("XU5", "X", ("+3V3", "GND"), model="ODD"),)))
+    for name in ("XJ2", "XSW1", "Y1", "XF1"):
+        assert board.part(name).params["roles"] == ("unknown", "unknown")
+        assert board.part(name).params["roles_origin"] == "unknown"
+    assert board.part("XU5").params["roles"] == ("supply", "ground")
