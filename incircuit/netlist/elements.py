@@ -13,6 +13,7 @@ folded into :attr:`Part.value` and not kept in ``params``.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 from typing import Protocol
 
@@ -21,7 +22,7 @@ from ..tolerances import default_tolerance
 from .lexer import Card, parse_annotations
 from .numbers import is_number
 
-__all__ = ["ElementFields", "split_element", "Scope", "build_part", "NODE_COUNTS"]
+__all__ = ["ElementFields", "split_element", "Scope", "build_part", "NODE_COUNTS", "Behavioural"]
 
 #: Pin counts of the semiconductor elements (manual 7.1, 8.1, 9.1, 11.1).
 NODE_COUNTS = {"D": (2,), "Q": (3, 4), "J": (3,), "M": (4,)}
@@ -39,6 +40,16 @@ _KIND_NAMES = {"D": "diode", "Q": "bipolar transistor", "J": "JFET", "M": "MOSFE
                "R": "resistor", "C": "capacitor", "L": "inductor"}
 
 
+#: A value that depends on circuit quantities (manual 3.3.4, 3.3.9, 3.3.13:
+#: behavioural R, C, L): node voltages, branch currents, time, frequency,
+#: or the run-time ternary operator.
+_BEHAVIOUR = re.compile(r"(?i)(?<![\w.])[vi]\s*\(|(?<![\w.])(?:time|hertz)(?![\w.])|\?")
+
+
+class Behavioural(Exception):
+    """An R, C or L whose value is an expression of circuit quantities."""
+
+
 class Scope(Protocol):
     """What an element needs from the flattener."""
 
@@ -46,6 +57,7 @@ class Scope(Protocol):
     def net(self, name: str) -> str: ...
     def part_name(self, name: str) -> str: ...
     def model(self, name: str) -> tuple[str, Model] | None: ...
+    def bins(self, name: str) -> list[tuple[str, Model]]: ...
     def note(self, card: Card, text: str) -> None: ...
 
 
@@ -126,6 +138,9 @@ def _nodes(ef: ElementFields, count: int, card: Card, name: str, what: str) -> l
 
 def _passive(letter: str, name: str, ef: ElementFields, scope: Scope, card: Card) -> Part:
     nodes = _nodes(ef, 2, card, name, " and a value")
+    rest = " ".join(ef.positional[2:] + [t for texts in ef.keywords.values() for t in texts])
+    if _BEHAVIOUR.search(rest):
+        raise Behavioural(f"{letter} (behavioural)")
     value_text: str | None = None
     model: Model | None = None
     for f in ef.positional[2:]:
@@ -205,6 +220,8 @@ def _semiconductor(letter: str, name: str, ef: ElementFields, scope: Scope, card
     for n in counts:
         if found is None and len(pos) > n:
             found, at = scope.model(pos[n]), n
+    if found is None and letter == "M" and len(pos) > 4:
+        found, at = _binned(pos[4], ef, scope, card, name), 4
     if found is None:
         need = " or ".join(str(c) for c in counts)
         later = [f for f in pos[max(counts) + 1:] if scope.model(f) is not None]
@@ -230,6 +247,21 @@ def _semiconductor(letter: str, name: str, ef: ElementFields, scope: Scope, card
     _annotate(letter, card, scope, name)
     return Part(name, letter, tuple(scope.net(n) for n in nodes), None, board_name, params, None,
                 Location(card.path, card.line))
+
+
+def _binned(model_name: str, ef: ElementFields, scope: Scope, card: Card, name: str) -> tuple[str, Model] | None:
+    """The binned model ``NAME.n`` whose LMIN..LMAX, WMIN..WMAX hold the
+    instance's l and w (manual 3.2.3 "Model binning")."""
+    bins = scope.bins(model_name)
+    if not bins:
+        return None
+    size = {k: scope.value(ef.keywords[k][0], card) for k in ("l", "w") if k in ef.keywords}
+    for board_name, model in bins:
+        p = model.params
+        if all(p.get(k + "min", 0.0) <= v <= p.get(k + "max", float("inf")) for k, v in size.items()):
+            return board_name, model
+    raise card.error(f"{name}: no binned model {model_name.upper()}.n covers "
+                     + " ".join(f"{k}={v:g}" for k, v in size.items()))
 
 
 def build_part(letter: str, fields: list[str], scope: Scope, card: Card) -> Part:

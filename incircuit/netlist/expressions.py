@@ -10,8 +10,8 @@ whitelist and evaluated by a small tree walker.
 
 Two manual rules differ from Python and are kept: unary minus binds tighter
 than ``**`` (``-2**2`` is 4), and ``log`` is the natural logarithm (like
-``ln``). Condition expressions (``.if``) also allow comparisons and
-``&& || !``.
+``ln``). Condition expressions (``.if``) also allow comparisons (``=``
+meaning ``==`` as in the ngspice examples) and ``&& || !``.
 
 >>> evaluate("2*R0+1k", {"r0": 10.0})
 1020.0
@@ -82,11 +82,11 @@ FUNCTIONS: dict[str, tuple[Callable[..., float], int, int]] = {
 _TOKEN = re.compile(
     r"\s*(?:"
     r"(?P<num>(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?[A-Za-z]*)"
-    r"|(?P<name>[A-Za-z_][A-Za-z0-9_]*)"
-    r"|(?P<op>\*\*|==|!=|<>|<=|>=|&&|\|\||[-+*/^(),<>!])"
+    r"|(?P<name>[^\W\d]\w*)"
+    r"|(?P<op>\*\*|==|!=|<>|<=|>=|&&|\|\||[-+*/^(),<>!=])"
     r")"
 )
-_LOGIC_OPS = {"==": "==", "!=": "!=", "<>": "!=", "<=": "<=", ">=": ">=", "<": "<",
+_LOGIC_OPS = {"==": "==", "=": "==", "!=": "!=", "<>": "!=", "<=": "<=", ">=": ">=", "<": "<",
               ">": ">", "&&": " and ", "||": " or ", "!": " not "}
 
 

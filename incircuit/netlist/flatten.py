@@ -22,7 +22,7 @@ from dataclasses import dataclass, field
 
 from ..errors import NetlistError
 from ..model import Location, Model, Part
-from .elements import build_part, split_element
+from .elements import Behavioural, build_part, split_element
 from .expressions import ExpressionError, evaluate
 from .lexer import Card
 from .numbers import NumberError, is_number, parse_number
@@ -39,6 +39,10 @@ SOURCE_SHORT_OHMS = 1e-3
 MAX_PARTS = 200_000
 #: Deepest subcircuit nesting.
 MAX_DEPTH = 50
+
+#: Names every expression knows: ``temper``, the circuit temperature in
+#: degrees Celsius, at ngspice's default of 27 (manual 15.1.1, option TEMP).
+BUILTIN_PARAMS = {"temper": 27.0}
 
 #: Model types kept on the board (manual table 2.3); VDMOS is read as NMOS/PMOS.
 BOARD_MODEL_TYPES = ("D", "NPN", "PNP", "NMOS", "PMOS", "NJF", "PJF")
@@ -131,6 +135,11 @@ class _Level:
     def model(self, name: str) -> tuple[str, Model] | None:
         return self.models.get(name.upper())
 
+    def bins(self, name: str) -> list[tuple[str, Model]]:
+        head = name.upper() + "."
+        found = [(k, v) for k, v in self.models.items() if k.startswith(head) and k[len(head):].isdigit()]
+        return [v for _, v in sorted(found, key=lambda kv: int(kv[0][len(head):]))]
+
     def note(self, card: Card, text: str) -> None:
         self.ctx.note(card, text)
 
@@ -166,8 +175,8 @@ def _active(level: _Level, items: list) -> list:
     return out
 
 
-def _model(level: _Level, mc: ModelCard, board_name: str) -> Model | None:
-    """A Model from a card, or None for a type the board does not use."""
+def _model(level: _Level, mc: ModelCard, board_name: str) -> Model:
+    """A Model from a card (of any type; the caller keeps the board's types)."""
     ctx = level.ctx
     mtype = mc.type
     params: dict[str, float] = {}
@@ -197,10 +206,6 @@ def _model(level: _Level, mc: ModelCard, board_name: str) -> Model | None:
         params["vdmos"] = 1.0
         ctx.note(mc.card, f"model {mc.name}: VDMOS read as a {mtype} with its bulk on the source; "
                  "its body diode is not modelled")
-    if mtype not in BOARD_MODEL_TYPES and mtype not in VALUE_MODEL_TYPES:
-        count, first = ctx.flat.skipped_models.get(mtype, (0, mc.card))
-        ctx.flat.skipped_models[mtype] = (count + 1, first)
-        return None
     return Model(board_name, mtype, params, Location(mc.card.path, mc.card.line))
 
 
@@ -254,8 +259,9 @@ def _call(level: _Level, el: Element) -> None:
     known = {k for k, _ in sub.defaults}
     for key in overrides:
         if key not in known:
-            raise card.error(f"{name}: subcircuit {sub_name} has no parameter {key}")
+            level.note(card, f"{name}: parameter {key} is not on the .subckt line of {sub_name}: set anyway")
     params = dict(level.params)
+    params.update({k: v for k, v in overrides.items() if k not in known})
     failed = dict(level.failed)
     inner = _Level(ctx, name + ".", dict(zip(sub.pins, nets)), params, failed, level.models,
                    level.subckts, level.stack + (sub,))
@@ -279,8 +285,9 @@ def _expand(level: _Level, body: Body) -> None:
         if isinstance(item, ModelCard):
             board_name = level.prefix + item.name
             model = _model(level, item, board_name)
-            if model is None:
-                continue
+            if model.type not in BOARD_MODEL_TYPES and model.type not in VALUE_MODEL_TYPES:
+                count, first = ctx.flat.skipped_models.get(model.type, (0, item.card))
+                ctx.flat.skipped_models[model.type] = (count + 1, first)
             if item.name in models and models[item.name][0] == board_name:
                 level.note(item.card, f"model {item.name} defined again; the later card is used")
             models[item.name] = (board_name, model)
@@ -294,7 +301,11 @@ def _expand(level: _Level, body: Body) -> None:
             continue
         letter = item.letter
         if letter in "RCLDQJM":
-            part = build_part(letter, item.fields, level, item.card)
+            try:
+                part = build_part(letter, item.fields, level, item.card)
+            except Behavioural as skipped:
+                ctx.deck.skip(str(skipped), item.card)
+                continue
             ctx.add(part, item.card)
             if letter == "L":
                 inductors.add(part.name)
@@ -331,6 +342,6 @@ def _coupling(level: _Level, el: Element, inductors: set[str]) -> Part:
 def flatten(deck: Deck, keep_sources: bool = False) -> Flat:
     """Expand every subcircuit call of ``deck`` into flat parts."""
     ctx = _Context(deck, keep_sources)
-    top = _Level(ctx, "", {}, {}, {}, {}, {}, ())
+    top = _Level(ctx, "", {}, dict(BUILTIN_PARAMS), {}, {}, {}, ())
     _expand(top, deck.body)
     return ctx.flat

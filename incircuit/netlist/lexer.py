@@ -50,6 +50,11 @@ class Card:
         return NetlistError(_one_line(message), self.path, self.line)
 
 
+#: Characters stripped from both ends of a line: white space, and the
+#: DOS end-of-file mark (Ctrl-Z) that old files carry on their last line.
+_BLANKS = " \t\r\f\v\x1a\x00"
+
+
 def _one_line(message: str) -> str:
     return " ".join(message.split())
 
@@ -113,7 +118,7 @@ def read_cards(text: str, path: str, has_title: bool = True) -> tuple[str, list[
         notes.clear()
 
     for number, raw in enumerate(lines[start:], start + 1):
-        stripped = raw.rstrip("\r").strip()
+        stripped = raw.strip(_BLANKS)
         if not stripped or stripped[0] == "*":
             continue
         code, comment = _strip_comment(stripped)

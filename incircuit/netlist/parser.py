@@ -109,7 +109,7 @@ class Deck:
         self.skipped[kind] = (count + 1, first)
 
 
-_ASSIGN = re.compile(r"([A-Za-z_][A-Za-z0-9_]*)\s*=(?!=)")
+_ASSIGN = re.compile(r"([^\W\d]\w*)\s*=(?!=)")
 
 
 def split_assignments(text: str, card: Card) -> list[tuple[str, str]]:
