@@ -1,0 +1,295 @@
+"""Modified nodal analysis of the probed part of a board, reduced once per session.
+
+:func:`reduce_network` turns the board's two-terminal branches (see
+:mod:`.branches`) into the matrices of ``C x' + G x + A i = b``,
+``Lm i' = A^T x`` over as few nets as possible:
+
+1. ties (0 ohm resistors, 0 H inductors) merge their nets;
+2. only the connected component of the probed nets is kept (the board
+   floats: anything not joined to a probe by parts cannot affect it);
+3. dangling branches are pruned: a net with a single branch end carries no
+   current through that branch, so it takes the voltage of the far end;
+4. purely resistive internal nets (no capacitance, inductor or junction,
+   not probed) are eliminated exactly by a Schur complement of ``G``; their
+   voltages are recovered from the kept ones, ``x_e = R x_k``.
+
+Every net has ``GMIN`` to the tester's ground so that DC is always defined.
+The tester's ground is the reference of ``x``; it is not a board net (the
+board's own net ``"0"`` is an ordinary net).
+
+>>> from incircuit.engines.branches import Branches
+>>> br = Branches(resistors=[("A", "M", 1e-3), ("M", "B", 1e-3), ("M", "X", 0.2)])
+>>> net = reduce_network(br, ("A", "B"), stray=0.0)  # conductances in S
+>>> net.nets, round(float(-net.G[0, 1]), 9)
+(('A', 'B'), 0.0005)
+>>> net.where["X"] == net.where["M"]
+True
+"""
+
+from __future__ import annotations
+
+from collections import defaultdict
+from dataclasses import dataclass, field
+
+import numpy as np
+import scipy.linalg as sla
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+from ..errors import EngineError
+from .branches import Branches
+from .pwl import Curve
+
+__all__ = ["GMIN", "Network", "reduce_network"]
+
+#: Conductance (S) from every net to the tester's ground: SPICE's customary
+#: default GMIN (ngspice manual, ``.options gmin``, default 1e-12).
+GMIN = 1e-12
+
+
+@dataclass(frozen=True)
+class Network:
+    """The reduced network of one session (indices refer to :attr:`nets`).
+
+    G, C
+        Conductance (with GMIN and the eliminated resistive nets folded in)
+        and capacitance (with the probes' stray) matrices, ``n x n``.
+    A, Lm
+        Inductor incidence ``n x m`` (+1 at the first node) and inductance
+        matrix ``m x m`` (mutual terms from couplings).
+    junctions
+        ``(anode, cathode, curve, name)`` per junction.
+    probes
+        Index of each probe's net.
+    grounded
+        Nets with capacitance to the tester's ground (the probes' stray).
+    recover, eliminated
+        ``x_e = recover @ x`` gives the eliminated nets' voltages.
+    where
+        Board net name -> ``("k", i)`` kept net i or ``("e", i)`` eliminated.
+    """
+
+    nets: tuple[str, ...]
+    G: np.ndarray
+    C: np.ndarray
+    A: np.ndarray
+    Lm: np.ndarray
+    junctions: tuple[tuple[int, int, Curve, str], ...]
+    probes: tuple[int, ...]
+    grounded: np.ndarray
+    eliminated: tuple[str, ...] = ()
+    recover: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
+    where: dict[str, tuple[str, int]] = field(default_factory=dict)
+
+    def voltages(self, x: np.ndarray) -> dict[str, float]:
+        """Every board net's voltage from the kept nets' voltages ``x``."""
+        xe = self.recover @ x if len(self.eliminated) else np.zeros(0)
+        return {name: float(x[i] if kind == "k" else xe[i]) for name, (kind, i) in self.where.items()}
+
+
+class _Union:
+    def __init__(self) -> None:
+        self.parent: dict[str, str] = {}
+
+    def find(self, a: str) -> str:
+        parent = self.parent
+        root = a
+        while parent.get(root, root) != root:
+            root = parent[root]
+        while a != root:
+            parent[a], a = root, parent.get(a, a)
+        return root
+
+    def union(self, a: str, b: str) -> None:
+        ra, rb = self.find(a), self.find(b)
+        if ra != rb:
+            self.parent[max(ra, rb)] = min(ra, rb)
+
+
+def reduce_network(
+    branches: Branches,
+    probe_nets: tuple[str, ...],
+    stray: float,
+    *,
+    prune: bool = True,
+    eliminate: bool = True,
+    board_nets: tuple[str, ...] | None = None,
+) -> Network:
+    """Reduce ``branches`` to the network seen from ``probe_nets``.
+
+    ``prune`` and ``eliminate`` switch steps 3 and 4 off (for checking that
+    they do not change results). ``board_nets`` limits :attr:`Network.where`
+    to those names (default: every net of the branches).
+    """
+    uf = _Union()
+    for a, b in branches.ties:
+        uf.union(a, b)
+    find = uf.find
+    probes = tuple(find(p) for p in probe_nets)
+
+    # (kind, a, b, value, tag) with kind in R C L J; tag: inductor name or curve
+    items: list[list] = []
+    for a, b, g in branches.resistors:
+        items.append(["R", find(a), find(b), g, None])
+    for a, b, c in branches.capacitors:
+        items.append(["C", find(a), find(b), c, None])
+    coupled = {n for n1, n2, _ in branches.couplings for n in (n1, n2)}
+    for name, a, b, h in branches.inductors:
+        items.append(["L", find(a), find(b), h, name])
+    for name, a, b, curve in branches.junctions:
+        items.append(["J", find(a), find(b), curve, name])
+    items = [it for it in items if it[1] != it[2] or (it[0] == "L" and it[4] in coupled)]
+
+    # connected component of the probes (couplings join inductors magnetically)
+    adj: dict[str, set[str]] = defaultdict(set)
+    for _, a, b, _, _ in items:
+        adj[a].add(b)
+        adj[b].add(a)
+    l_node = {it[4]: it[1] for it in items if it[0] == "L"}
+    for n1, n2, _ in branches.couplings:
+        if n1 in l_node and n2 in l_node:
+            adj[l_node[n1]].add(l_node[n2])
+            adj[l_node[n2]].add(l_node[n1])
+    seen = set(probes)
+    stack = list(probes)
+    while stack:
+        for nb in adj[stack.pop()]:
+            if nb not in seen:
+                seen.add(nb)
+                stack.append(nb)
+    items = [it for it in items if it[1] in seen]
+
+    parent: dict[str, str] = {}
+    if prune:
+        items = _prune(items, set(probes), parent)
+    alive = {n for it in items for n in it[1:3]} | set(probes)
+
+    kept_set = set(probes)
+    for kind, a, b, _, _ in items:
+        if kind != "R":
+            kept_set.update((a, b))
+    if not eliminate:
+        kept_set = set(alive)
+    kept = sorted(kept_set, key=lambda n: (n not in probes, n))
+    elim = sorted(alive - kept_set)
+    index = {n: i for i, n in enumerate(kept)}
+    index.update({n: len(kept) + i for i, n in enumerate(elim)})
+    nk, ne = len(kept), len(elim)
+
+    rows, cols, vals = [], [], []
+    C = np.zeros((nk, nk))
+    A_cols: list[tuple[int, int]] = []
+    l_names: list[str] = []
+    l_vals: list[float] = []
+    junctions = []
+    for kind, a, b, v, tag in items:
+        i, j = index[a], index[b]
+        if kind == "R":
+            rows += [i, j, i, j]
+            cols += [i, j, j, i]
+            vals += [v, v, -v, -v]
+        elif kind == "C":
+            C[i, i] += v
+            C[j, j] += v
+            C[i, j] -= v
+            C[j, i] -= v
+        elif kind == "L":
+            A_cols.append((i, j))
+            l_names.append(tag)
+            l_vals.append(v)
+        else:
+            junctions.append((i, j, v, tag))
+    grounded = np.zeros(nk, dtype=bool)
+    if stray > 0:
+        for p in probes:
+            C[index[p], index[p]] += stray
+            grounded[index[p]] = True
+    n = nk + ne
+    rows += list(range(n))
+    cols += list(range(n))
+    vals += [GMIN] * n
+    Gs = sp.coo_matrix((vals, (rows, cols)), shape=(n, n)).tocsc()
+    if ne:
+        Gkk = Gs[:nk, :nk].toarray()
+        Gek = Gs[nk:, :nk].toarray()
+        Gee = Gs[nk:, nk:]
+        if ne <= 64:
+            X = sla.cho_solve(sla.cho_factor(Gee.toarray()), Gek)
+        else:
+            X = spla.splu(Gee.tocsc()).solve(Gek)
+        G = Gkk - Gek.T @ X
+        G = 0.5 * (G + G.T)
+        recover = -X
+    else:
+        G = Gs.toarray()
+        recover = np.zeros((0, nk))
+
+    m = len(A_cols)
+    A = np.zeros((nk, m))
+    for col, (i, j) in enumerate(A_cols):
+        A[i, col] += 1.0
+        A[j, col] -= 1.0
+    Lm = np.diag(np.asarray(l_vals, dtype=float)) if m else np.zeros((0, 0))
+    pos = {name: col for col, name in enumerate(l_names)}
+    for n1, n2, k in branches.couplings:
+        if n1 in pos and n2 in pos and n1 != n2:
+            i, j = pos[n1], pos[n2]
+            mutual = k * np.sqrt(Lm[i, i] * Lm[j, j])
+            Lm[i, j] += mutual
+            Lm[j, i] += mutual
+
+    names = board_nets if board_nets is not None else branches.nets()
+    where: dict[str, tuple[str, int]] = {}
+    for name in names:
+        r = find(name)
+        while r in parent:
+            r = parent[r]
+        if r in index:
+            i = index[r]
+            where[name] = ("k", i) if i < nk else ("e", i - nk)
+    for p in probe_nets:
+        if p not in where:
+            where[p] = ("k", index[find(p)])
+    return Network(
+        nets=tuple(kept),
+        G=G,
+        C=C,
+        A=A,
+        Lm=Lm,
+        junctions=tuple(junctions),
+        probes=tuple(index[p] for p in probes),
+        grounded=grounded,
+        eliminated=tuple(elim),
+        recover=recover,
+        where=where,
+    )
+
+
+def _prune(items: list[list], probes: set[str], parent: dict[str, str]) -> list[list]:
+    """Remove dangling branches repeatedly; ``parent`` records where each went."""
+    ends: dict[str, list[int]] = defaultdict(list)
+    for k, it in enumerate(items):
+        ends[it[1]].append(k)
+        ends[it[2]].append(k)
+    removed = [False] * len(items)
+    degree = {n: len(v) for n, v in ends.items()}
+    queue = [n for n, d in degree.items() if d == 1 and n not in probes]
+    while queue:
+        net = queue.pop()
+        if degree[net] != 1:
+            continue
+        k = next(k for k in ends[net] if not removed[k])
+        removed[k] = True
+        it = items[k]
+        other = it[2] if it[1] == net else it[1]
+        if other == net:
+            continue
+        parent[net] = other
+        degree[net] = 0
+        degree[other] -= 1
+        if degree[other] == 1 and other not in probes:
+            queue.append(other)
+    out = [it for k, it in enumerate(items) if not removed[k]]
+    if not out and not probes:
+        raise EngineError("nothing left to simulate")
+    return out

@@ -1,0 +1,366 @@
+"""Closed-form solution of ``C x' + G x + A i = b``, ``Lm i' = A^T x`` between events.
+
+Coordinates. Nets without capacitance, and the common mode of each island
+of capacitors with no capacitance to the tester's ground, are algebraic:
+:func:`make_split` writes ``x = Tr y + Tn w`` where ``y`` holds the voltages
+of capacitive nets (relative to one reference net per floating island) and
+``w`` the algebraic rest, so that ``Tr^T C Tr = Cr`` is positive definite and
+``C Tn = 0``. The algebraic rows give ``w = H (Tn^T b - Gnr y - An i)`` with
+``H = Gnn^-1``; substituting leaves
+
+    Cr y' = -S y - K i + P^T b,     S = Grr - Grn H Gnr,
+    Lm i' =  K^T y - An^T H An i + An^T H Tn^T b,   K = Ar - Grn H An.
+
+Without inductors ``S phi = lambda Cr phi`` is a symmetric generalized
+eigenproblem (real decaying modes, :class:`Modal` via ``eigh``). With
+inductors the state ``z = (y, i)`` obeys ``z' = F z + g`` and ``F`` is
+diagonalised by ``eig``; when its eigenvectors are ill-conditioned the
+matrix exponential of the augmented matrix ``[[F, g], [0, 0]]`` is used
+instead (:class:`Exponential`). In modal form every net voltage is
+
+    x(t) = Xc b + Re M (e^{lambda t} zeta0 + t phi1(lambda t) gamma),
+    phi1(u) = (e^u - 1) / u,
+
+which also holds for a zero eigenvalue (a loop of inductors).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.linalg as sla
+from scipy.optimize import brentq
+from scipy.sparse.csgraph import connected_components
+
+__all__ = ["Split", "make_split", "Static", "Modal", "Exponential", "decompose", "first_event", "time_grid"]
+
+#: Above this condition number of the eigenvector matrix the matrix
+#: exponential replaces the modal sum.
+EIG_COND_MAX = 1e8
+
+
+@dataclass(frozen=True)
+class Split:
+    """Dynamic/algebraic coordinates: ``x = Tr y + Tn w``, ``y = Lsel x``."""
+
+    Tr: np.ndarray
+    Tn: np.ndarray
+    Lsel: np.ndarray
+    Cr: np.ndarray
+
+
+def make_split(C: np.ndarray, grounded: np.ndarray, anchor: np.ndarray | None = None) -> Split:
+    """Coordinates for capacitance matrix ``C`` (``grounded``: nets with capacitance to ground).
+
+    The reference net of a floating island is the member with the largest
+    ``anchor`` (its conductance to everything else): eliminating the
+    island's common mode then subtracts small numbers from small ones
+    instead of large from large (no cancellation).
+
+    >>> C = np.array([[2.0, -1.0, 0.0], [-1.0, 1.0, 0.0], [0.0, 0.0, 0.0]])
+    >>> s = make_split(C, np.array([True, False, False]))
+    >>> s.Tr.shape, s.Tn.shape
+    ((3, 2), (3, 1))
+    """
+    n = len(C)
+    cap = np.flatnonzero(np.diag(C) > 0)
+    Tr_cols: list[np.ndarray] = []
+    Tn_cols: list[np.ndarray] = []
+    L_rows: list[np.ndarray] = []
+    eye = np.eye(n)
+    if len(cap):
+        sub = C[np.ix_(cap, cap)] != 0
+        ncomp, labels = connected_components(sub, directed=False)
+        for c in range(ncomp):
+            members = cap[labels == c]
+            ref = None
+            if not grounded[members].any():
+                ref = members[0] if anchor is None else members[np.argmax(anchor[members])]
+            for j in members:
+                if j == ref:
+                    continue
+                Tr_cols.append(eye[j])
+                L_rows.append(eye[j] - (eye[ref] if ref is not None else 0.0))
+            if ref is not None:
+                ind = np.zeros(n)
+                ind[members] = 1.0
+                Tn_cols.append(ind)
+    for j in np.flatnonzero(np.diag(C) <= 0):
+        Tn_cols.append(eye[j])
+    Tr = np.array(Tr_cols).T.reshape(n, len(Tr_cols))
+    Tn = np.array(Tn_cols).T.reshape(n, len(Tn_cols))
+    Lsel = np.array(L_rows).reshape(len(L_rows), n)
+    return Split(Tr, Tn, Lsel, Tr.T @ C @ Tr)
+
+
+class Static:
+    """The algebraic part for one conductance matrix ``G``: the instantaneous solution."""
+
+    def __init__(self, split: Split, G: np.ndarray, A: np.ndarray):
+        Tr, Tn = split.Tr, split.Tn
+        self.split = split
+        self.G = G
+        self.A = A
+        GTn = G @ Tn
+        Gnn = Tn.T @ GTn
+        self.Grn = Tr.T @ GTn
+        self.An = Tn.T @ A
+        if Gnn.size:
+            self.H = np.linalg.inv(Gnn)
+            self.H = 0.5 * (self.H + self.H.T)
+        else:
+            self.H = np.zeros((0, 0))
+        TnH = Tn @ self.H
+        #: x = P y + Pi i + Xc b
+        self.P = Tr - TnH @ self.Grn.T
+        self.Pi = -TnH @ self.An
+        self.Xc = TnH @ Tn.T
+
+    def instant(self, x: np.ndarray, i: np.ndarray, b: np.ndarray) -> np.ndarray:
+        """Net voltages with the dynamic part of ``x`` and currents ``i`` held."""
+        return self.P @ (self.split.Lsel @ x) + self.Pi @ i + self.Xc @ b
+
+
+class Modal:
+    """Modal form ``x(t) = Xc b + Re M (e^{lam t} zeta0 + t phi1(lam t) gamma)``."""
+
+    def __init__(self, st: Static, Lm: np.ndarray):
+        sp_ = st.split
+        Cr = sp_.Cr
+        nr, m = Cr.shape[0], Lm.shape[0]
+        S = sp_.Tr.T @ st.G @ sp_.Tr - st.Grn @ st.H @ st.Grn.T
+        S = 0.5 * (S + S.T)
+        self.Xc = st.Xc
+        if m == 0:
+            lam, Phi = sla.eigh(S, Cr) if nr else (np.zeros(0), np.zeros((0, 0)))
+            self.lam = -lam
+            self.M = st.P @ Phi
+            self.Wx = Phi.T @ Cr @ sp_.Lsel
+            self.Wi = np.zeros((nr, 0))
+            self.Gam = self.M.T.copy()
+            self.Mi = np.zeros((0, nr))
+            self.real = True
+            self.ok = True
+            return
+        Ar = sp_.Tr.T @ st.A
+        K = Ar - st.Grn @ st.H @ st.An
+        D = st.An.T @ st.H @ st.An
+        E = sla.block_diag(Cr, Lm)
+        Ablk = np.block([[S, K], [-K.T, D]])
+        Bmap = np.vstack([st.P.T, st.An.T @ st.H @ sp_.Tn.T])
+        self.F = -np.linalg.solve(E, Ablk)
+        self.gmap = np.linalg.solve(E, Bmap)
+        self.Cz = np.hstack([st.P, st.Pi])
+        self.nr = nr
+        lam, V = np.linalg.eig(self.F)
+        self.real = False
+        cond = np.linalg.cond(V) if len(V) else 1.0
+        self.ok = bool(np.isfinite(cond) and cond < EIG_COND_MAX)
+        if not self.ok:
+            return
+        Vinv = np.linalg.inv(V)
+        self.lam = lam
+        self.M = self.Cz @ V
+        self.Mi = V[nr:, :]
+        self.Wx = Vinv[:, :nr] @ sp_.Lsel
+        self.Wi = Vinv[:, nr:]
+        self.Gam = Vinv @ self.gmap
+
+    def start(self, x0: np.ndarray, i0: np.ndarray, b: np.ndarray) -> "ModalTrajectory":
+        zeta = self.Wx @ x0 + self.Wi @ i0
+        gam = self.Gam @ b
+        return ModalTrajectory(self, zeta, gam, self.Xc @ b)
+
+
+def _phi_t(lam: np.ndarray, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """``e^{lam t}`` and ``t phi1(lam t)`` for times ``t`` (rows) and modes (columns)."""
+    u = np.multiply.outer(t, lam)
+    ex = np.exp(u)
+    safe = np.where(lam == 0, 1.0, lam)
+    tp = np.where(lam == 0, t[:, None] + 0 * u, np.expm1(u) / safe)
+    return ex, tp
+
+
+class ModalTrajectory:
+    """The closed-form solution from one starting state."""
+
+    def __init__(self, dec: Modal, zeta: np.ndarray, gam: np.ndarray, const: np.ndarray):
+        self.dec = dec
+        self.zeta = zeta
+        self.gam = gam
+        self.const = const
+
+    @property
+    def rates(self) -> np.ndarray:
+        return self.dec.lam
+
+    def combo(self, W: np.ndarray, level: np.ndarray) -> "Combo":
+        """Scalar functions ``W x(t) - level`` (one per row of ``W``)."""
+        WM = W @ self.dec.M
+        return Combo(self.dec.lam, WM * self.zeta, WM * self.gam, W @ self.const - level, self.dec.real)
+
+    def nets(self, t: np.ndarray) -> np.ndarray:
+        ex, tp = _phi_t(self.dec.lam, np.asarray(t, dtype=float))
+        modal = ex * self.zeta + tp * self.gam
+        out = modal @ self.dec.M.T
+        return self.const + (out.real if not self.dec.real else out)
+
+    def state(self, t: float) -> tuple[np.ndarray, np.ndarray]:
+        ex, tp = _phi_t(self.dec.lam, np.array([t]))
+        modal = (ex * self.zeta + tp * self.gam)[0]
+        x = self.const + (self.dec.M @ modal).real
+        i = (self.dec.Mi @ modal).real
+        return x, i
+
+
+class Combo:
+    """``c + Re(sum_k p_k e^{lam_k t} + q_k t phi1(lam_k t))`` for several rows."""
+
+    def __init__(self, lam, p, q, c, real: bool):
+        self.lam, self.p, self.q, self.c, self.real = lam, p, q, c, real
+
+    def __call__(self, t: np.ndarray) -> np.ndarray:
+        ex, tp = _phi_t(self.lam, np.asarray(t, dtype=float))
+        out = ex @ self.p.T + tp @ self.q.T
+        return self.c + (out if self.real else out.real)
+
+    def row(self, k: int):
+        lam, p, q, c = self.lam, self.p[k], self.q[k], self.c[k]
+        nz = lam != 0
+        lam_nz = lam[nz]
+        pk, qk = p[nz], q[nz]
+        q0 = q[~nz].sum()
+        real = self.real
+
+        def f(t: float) -> float:
+            ex = np.exp(lam_nz * t)
+            v = pk @ ex + qk @ ((ex - 1.0) / lam_nz) + q0 * t
+            return float(c + (v if real else v.real))
+
+        return f
+
+
+class Exponential:
+    """Fallback for defective or near-defective state matrices: ``expm`` of the augmented matrix."""
+
+    def __init__(self, st: Static, modal: Modal):
+        self.F, self.gmap, self.Cz, self.Xc = modal.F, modal.gmap, modal.Cz, modal.Xc
+        self.Lsel = st.split.Lsel
+        self.nr = modal.nr
+        lam = np.linalg.eigvals(self.F)
+        self.lam = lam
+
+    def start(self, x0: np.ndarray, i0: np.ndarray, b: np.ndarray) -> "ExpTrajectory":
+        return ExpTrajectory(self, np.concatenate([self.Lsel @ x0, i0]), self.gmap @ b, self.Xc @ b)
+
+
+class ExpTrajectory:
+    def __init__(self, dec: Exponential, z0: np.ndarray, g: np.ndarray, const: np.ndarray):
+        N = len(z0)
+        aug = np.zeros((N + 1, N + 1))
+        aug[:N, :N] = dec.F
+        aug[:N, N] = g
+        self.aug = aug
+        self.v0 = np.concatenate([z0, [1.0]])
+        self.dec = dec
+        self.const = const
+
+    @property
+    def rates(self) -> np.ndarray:
+        return self.dec.lam
+
+    def _z(self, t: float) -> np.ndarray:
+        return (sla.expm(self.aug * t) @ self.v0)[:-1]
+
+    def nets(self, t: np.ndarray) -> np.ndarray:
+        return np.array([self.const + self.dec.Cz @ self._z(tt) for tt in np.atleast_1d(t)]).reshape(-1, len(self.const))
+
+    def state(self, t: float) -> tuple[np.ndarray, np.ndarray]:
+        z = self._z(t)
+        return self.const + self.dec.Cz @ z, z[self.dec.nr :]
+
+    def combo(self, W: np.ndarray, level: np.ndarray) -> "ExpCombo":
+        return ExpCombo(self, W, level)
+
+
+class ExpCombo:
+    def __init__(self, traj: ExpTrajectory, W: np.ndarray, level: np.ndarray):
+        self.traj, self.W, self.level = traj, W, level
+
+    def __call__(self, t: np.ndarray) -> np.ndarray:
+        return self.traj.nets(t) @ self.W.T - self.level
+
+    def row(self, k: int):
+        return lambda t: float(self(np.array([t]))[0, k])
+
+
+def decompose(st: Static, Lm: np.ndarray) -> Modal | Exponential:
+    """The modal form, or the matrix-exponential fallback when eigenvectors are ill-conditioned."""
+    modal = Modal(st, Lm)
+    return modal if modal.ok else Exponential(st, modal)
+
+
+def time_grid(rates: np.ndarray, t_end: float, per_decade: int = 10, max_points: int = 4000) -> np.ndarray:
+    """Times in ``[0, t_end]`` fine enough to bracket crossings of a modal sum.
+
+    Log-spaced from a twentieth of the fastest time constant, plus points
+    every eighth of a period of each oscillating mode while it lasts.
+    """
+    if t_end <= 0:
+        return np.array([0.0])
+    rates = np.asarray(rates)
+    decay = np.abs(rates.real)
+    fast = decay.max() if len(decay) and decay.max() > 0 else 0.0
+    t_lo = max(t_end * 1e-14, 0.05 / fast if fast > 0 else t_end)
+    if t_lo >= t_end:
+        grid = [np.linspace(0.0, t_end, 9)]
+    else:
+        n = int(np.ceil(per_decade * np.log10(t_end / t_lo))) + 1
+        grid = [np.array([0.0]), np.geomspace(t_lo, t_end, n)]
+    budget = max_points
+    for r in rates[np.abs(rates.imag) > 0]:
+        if r.imag < 0:
+            continue
+        period = 2 * np.pi / r.imag
+        span = min(t_end, 10.0 / decay_or_inf(r.real))
+        k = int(min(budget, np.ceil(8 * span / period)))
+        if k > 2:
+            grid.append(np.linspace(0.0, span, k + 1))
+            budget -= k
+    return np.unique(np.concatenate(grid))
+
+
+def decay_or_inf(re: float) -> float:
+    return abs(re) if re != 0 else 1e-300
+
+
+def first_event(combo, t_end: float, rates: np.ndarray) -> tuple[float, int] | None:
+    """Earliest ``t`` in ``[0, t_end]`` where a row of ``combo`` reaches 0 from below.
+
+    A row already at or above 0 at ``t = 0`` fires at once. Crossings are
+    bracketed on :func:`time_grid` and refined with ``brentq``.
+    """
+    grid = time_grid(rates, t_end)
+    vals = combo(grid)
+    if vals.size == 0:
+        return None
+    hit = vals >= 0
+    first = np.flatnonzero(hit.any(axis=1))
+    if not len(first):
+        return None
+    g = first[0]
+    rows = np.flatnonzero(hit[g])
+    if g == 0:
+        return 0.0, int(rows[0])
+    a, b = grid[g - 1], grid[g]
+    best: tuple[float, int] | None = None
+    for k in rows:
+        f = combo.row(int(k))
+        t = brentq(f, a, b, xtol=max(b * 1e-13, 1e-300), rtol=1e-13)
+        # the root may sit a hair before the crossing; step to the side where f >= 0
+        if f(t) < 0:
+            t = min(b, t + max(abs(t) * 1e-13, 1e-300))
+        if best is None or t < best[0]:
+            best = (t, int(k))
+    return best
