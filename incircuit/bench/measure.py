@@ -65,6 +65,8 @@ class BenchReading:
     #: Junction name -> its forward current (A) during a DC reading, or the
     #: peak forward voltage (V) of the test signal across it for an LCR reading.
     junctions: Mapping[str, float] = field(default_factory=dict)
+    #: The test current of a DC reading (A).
+    current: float | None = None
 
     def describe(self) -> str:
         label = _LABEL.get(self.quantity, self.quantity)
@@ -77,7 +79,7 @@ class BenchReading:
             "instrument": self.instrument, "quantity": self.quantity, "value": self.value,
             "unit": self.unit, "accuracy": self.accuracy if math.isfinite(self.accuracy) else None,
             "setting": self.setting, "guard": self.guard, "frequency": self.frequency,
-            "junctions": dict(self.junctions),
+            "junctions": dict(self.junctions), "current": self.current,
         }
 
 
@@ -114,7 +116,8 @@ def ohms(board: Board, a: str, b: str, profile: BenchProfile, guard: str | None 
             continue  # over this range (with a guard, part of the current is not measured)
         value = volts / measured
         return BenchReading(profile.id, "R", value, "ohm", profile.ohms_accuracy(value, rng),
-                            f"{format_value(rng.full_scale, 'ohm')} range", guard, junctions=flows)
+                            f"{format_value(rng.full_scale, 'ohm')} range", guard, junctions=flows,
+                            current=rng.current)
     top = profile.ranges[-1]
     return BenchReading(profile.id, "R", None, "ohm", math.inf,
                         f"{format_value(top.full_scale, 'ohm')} range", guard)
@@ -128,7 +131,8 @@ def diode_drop(board: Board, a: str, b: str, profile: BenchProfile) -> BenchRead
                           open_volts=profile.diode_open_volts)
     if volts is None:
         return BenchReading(profile.id, "Vf", None, "V", math.inf, setting)
-    return BenchReading(profile.id, "Vf", volts, "V", profile.diode_accuracy(volts), setting, junctions=flows)
+    return BenchReading(profile.id, "Vf", volts, "V", profile.diode_accuracy(volts), setting,
+                        junctions=flows, current=profile.diode_current)
 
 
 def impedance(board: Board, a: str, b: str, profile: BenchProfile, frequency: float,

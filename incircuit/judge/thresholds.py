@@ -1,0 +1,96 @@
+"""Every number the judge decides with, in one place (docs/verdicts.md).
+
+Verdicts
+    ``reliable``    the in-circuit reading is of the same kind as the
+                    isolated one and inside the isolated reading's tolerance
+                    band widened by the instrument's accuracy;
+    ``masked``      the kind changes, or the sensitivity is below
+                    :data:`MASKED_SENSITIVITY`;
+    ``predictable`` otherwise: the reading differs from the part's own, but
+                    a fault still moves it away from the predicted value.
+
+Sensitivity ``S = (dReading/Reading) / (dValue/Value)`` is a symmetric
+difference: the part's value times ``1 +/- PERTURBATION``. A junction has no
+single value; its reading is a forward voltage, so its saturation current
+is scaled by ``JUNCTION_IS_FACTOR`` both ways and the change of the
+in-circuit reading is referred to the change of the isolated reading (the
+"value" of a junction is what it reads alone). Transistors and FETs use
+the same reading-referred form with the model parameter in
+:data:`SEMICONDUCTOR_PARAMETER`.
+"""
+
+from __future__ import annotations
+
+from types import MappingProxyType
+
+__all__ = [
+    "VERDICTS", "VERDICT_RANK", "MASKED_SENSITIVITY", "PERTURBATION", "JUNCTION_IS_FACTOR",
+    "SEMICONDUCTOR_PARAMETER", "DEFAULT_TOLERANCE", "READING_TOLERANCE", "DETECT_MARGIN",
+    "CONDUCTING_CURRENT", "CURRENT_SHARE_SHOWN", "MAX_NEIGHBOUR_PARTS", "MAX_GUARD_NETS",
+    "METER_JUNCTION_SHARE",
+]
+
+#: Verdicts, best first.
+VERDICTS = ("reliable", "predictable", "masked")
+#: Rank of each verdict for sorting (lower is better).
+VERDICT_RANK = MappingProxyType({v: i for i, v in enumerate(VERDICTS)})
+
+#: Below this sensitivity a change of the part hardly moves the reading:
+#: one fifth of a change shows, less than the spread of a typical healthy
+#: band (common practice for "the part is masked").
+MASKED_SENSITIVITY = 0.2
+
+#: Relative step of the part's value for the symmetric difference. Ten per
+#: cent stays well above the reading's quantisation and small enough that
+#: the reading is close to linear in the value.
+PERTURBATION = 0.10
+
+#: A junction's saturation current is multiplied and divided by this factor;
+#: its forward voltage then moves by ``n Vt ln 4`` (about 36 mV for n = 1,
+#: Sze's diode equation): a few per cent of the reading.
+JUNCTION_IS_FACTOR = 4.0
+
+#: Part kind -> (model parameter scaled for the sensitivity, SPICE default).
+SEMICONDUCTOR_PARAMETER = MappingProxyType({
+    "D": ("is", 1e-14),
+    "Q": ("bf", 100.0),
+    "M": ("kp", 2e-5),
+    "J": ("beta", 1e-4),
+})
+
+#: Tolerance of a part whose netlist line gives none (common practice: 5 %
+#: film resistors, 20 % electrolytic and ceramic capacitors and inductors).
+DEFAULT_TOLERANCE = MappingProxyType({"R": 0.05, "C": 0.20, "L": 0.20})
+
+#: How close an in-circuit reading must stay to the isolated one for parts
+#: without a value tolerance: forward voltages (about +/-30 mV at 0.6 V,
+#: from memory of diode data sheets' spread) and transistor gains or
+#: thresholds (from memory: gains spread far more part to part; ten per cent
+#: only asks that the circuit not change the reading noticeably).
+READING_TOLERANCE = MappingProxyType({"D": 0.05, "Q": 0.10, "M": 0.10, "J": 0.10, "X": 0.10})
+
+#: A fault is detectable when its reading leaves the healthy band by at least
+#: this fraction of the band's edge value (beyond the instrument accuracy
+#: already in the band): simulated readings carry timing and quantisation
+#: steps of about a per cent.
+DETECT_MARGIN = 0.01
+
+#: A junction counts as conducting when its Shockley current reaches this
+#: (A): a tenth of what the tester drives through its 470 kohm resistor
+#: (about 10 uA, common practice). The same current defines a junction's
+#: turn-on voltage when checking the LCR meter's test level.
+CONDUCTING_CURRENT = 1e-6
+
+#: A path beside the part is named with its share of the probe current when
+#: it carries at least this fraction.
+CURRENT_SHARE_SHOWN = 0.05
+
+#: A multimeter's resistance reading is called junction-free while every
+#: junction carries less than this share of the test current.
+METER_JUNCTION_SHARE = 0.01
+
+#: The lift plan tries at most this many neighbour parts (nearest paths first).
+MAX_NEIGHBOUR_PARTS = 6
+
+#: A guarded bench measurement tries at most this many guard nets.
+MAX_GUARD_NETS = 8
