@@ -271,7 +271,8 @@ def band_from_readings(readings: Sequence[Reading], probes: Sequence[str] = (),
 
 def healthy_band(board: Board, probes: Sequence[str], profile=None, engine: str = "analytic",
                  samples: int = DIAGNOSE_SAMPLES, seed: int = DEFAULT_SEED,
-                 quantiles: tuple[float, float] = QUANTILES, reader: Reader | None = None) -> Band:
+                 quantiles: tuple[float, float] = QUANTILES, reader: Reader | None = None,
+                 accuracy: Callable[[Reading], float] | None = None) -> Band:
     """Monte Carlo band of healthy readings on ``probes``.
 
     Parameters
@@ -290,7 +291,10 @@ def healthy_band(board: Board, probes: Sequence[str], profile=None, engine: str 
         Seed of the sampling; the same inputs give the same band.
     reader
         Function ``board -> Reading`` to use instead of an identification run
-        (tests and cheaper models).
+        (another instrument, a closed-form model).
+    accuracy
+        The instrument's absolute accuracy of a reading, instead of
+        ``profile.accuracy``.
     """
     if samples < 2:
         raise ValueError("a band needs at least two samples")
@@ -309,8 +313,8 @@ def healthy_band(board: Board, probes: Sequence[str], profile=None, engine: str 
     nominal = np.array([float(p.value) for p in parts])  # type: ignore[arg-type]
     values = nominal * sample_factors([p.tolerance for p in parts], samples, rng)
     readings = [reader(b) for b in _boards(board, parts, values)]
-    return band_from_readings(readings, probes, getattr(profile, "accuracy", None), seed,
-                              quantiles, [p.name for p in parts])
+    accuracy = accuracy or getattr(profile, "accuracy", None)
+    return band_from_readings(readings, probes, accuracy, seed, quantiles, [p.name for p in parts])
 
 
 def relative_width(band: Band) -> float:

@@ -36,15 +36,17 @@ Reading(kind='resistor', value=4700.0, unit='ohm', extra=mappingproxy({}))
 
 from __future__ import annotations
 
+import csv
 import math
 import re
+from dataclasses import dataclass
 from typing import Callable, NoReturn
 
-from .errors import ReadingError
-from .model import Reading
+from .errors import InputError, ReadingError
+from .model import Board, Reading
 
-__all__ = ["parse_reading", "PREFIXES", "KIND_WORDS", "NOTHING_WORDS", "PART_KIND_READINGS",
-           "PLAUSIBLE_MAX"]
+__all__ = ["parse_reading", "Observation", "observation", "load_observations", "parse_probes",
+           "PREFIXES", "KIND_WORDS", "NOTHING_WORDS", "PART_KIND_READINGS", "PLAUSIBLE_MAX"]
 
 #: Prefix -> power of ten. Case-sensitive: M mega, m milli ("meg" any case).
 PREFIXES = {
@@ -107,7 +109,7 @@ _Fail = Callable[[str], NoReturn]
 def _normalise(text: str) -> str:
     text = text.replace("\u00b5", "u").replace("\u03bc", "u")  # micro sign, Greek mu
     text = text.replace("\u2126", "ohm").replace("\u03a9", "ohm")  # ohm sign, Greek Omega
-    return " ".join(text.split())
+    return " ".join(text.split()).strip(" ,;")
 
 
 def _value(token: str, fail: _Fail) -> tuple[float, str | None, str | None, bool]:
@@ -207,3 +209,93 @@ def parse_reading(text: str, default_kind: str | None = None, *,
     if not math.isfinite(value) or value <= 0:
         fail("the value must be above zero (for a dead short type the smallest figure shown, e.g. 0.1ohm)")
     return Reading(kind, value, extra=extra)
+
+
+# -- observations: a reading on named probes --------------------------------
+@dataclass(frozen=True)
+class Observation:
+    """One reading: what was typed, on which probed nets, about which part,
+    and where it came from (``"file:line"`` or None)."""
+
+    part: str
+    probes: tuple[str, ...]
+    reading: Reading
+    text: str = ""
+    where: str | None = None
+
+    def to_dict(self) -> dict:
+        return {"part": self.part, "probes": list(self.probes), "text": self.text,
+                **self.reading.to_dict()}
+
+
+def parse_probes(text: str, board: Board, separators: str = ",;",
+                 path: str | None = None, line: int | None = None) -> tuple[str, ...]:
+    """Two or three net names separated by any of ``separators``, checked
+    against the board (names are case-insensitive)."""
+    names = [n.strip().upper() for n in re.split(f"[{re.escape(separators)}]", text) if n.strip()]
+    if not 2 <= len(names) <= 3:
+        raise InputError(f"probes {text!r}: give two or three nets, like NET1{separators[0]}NET2",
+                         path, line)
+    nets = set(board.nets)
+    for name in names:
+        if name not in nets:
+            raise InputError(f"probes {text!r}: no net {name!r} on board {board.name}", path, line)
+    if len(set(names)) != len(names):
+        raise InputError(f"probes {text!r}: a net is named twice", path, line)
+    return tuple(names)
+
+
+def observation(board: Board, part: str, text: str, probes: str | None = None,
+                path: str | None = None, line: int | None = None) -> Observation:
+    """An :class:`Observation` of ``part`` from typed ``text``; ``probes``
+    like ``"NET1,NET2"`` (None or empty: the part's own pins, up to three)."""
+    name = part.strip().upper()
+    if not board.has_part(name):
+        raise InputError(f"no part {part.strip()!r} on board {board.name}", path, line)
+    p = board.part(name)
+    if probes and probes.strip():
+        nets = parse_probes(probes, board, ",;", path, line)
+    else:
+        nets = tuple(dict.fromkeys(p.pins))[:3]
+        if len(nets) < 2:
+            raise InputError(f"{name} has fewer than two distinct nets: give probes", path, line)
+    reading = parse_reading(text, PART_KIND_READINGS.get(p.kind), path=path, line=line)
+    where = f"{path}:{line}" if path is not None else None
+    return Observation(name, nets, reading, text.strip(), where)
+
+
+def load_observations(path: str, board: Board) -> list[Observation]:
+    """Readings from a CSV file with the header ``part,probes,reading``.
+
+    ``probes`` is ``NET1;NET2`` (or ``NET1;NET2;NET3``) or empty for the
+    part's own pins. Blank lines and lines starting with ``#`` are skipped.
+    A bad row raises InputError naming the file and line.
+    """
+    try:
+        with open(path, newline="", encoding="utf-8") as handle:
+            lines = handle.read().splitlines()
+    except OSError as error:
+        raise InputError(f"cannot read readings file: {error.strerror}", path) from None
+    except UnicodeDecodeError:
+        raise InputError("readings file is not UTF-8 text", path) from None
+    rows = [(no, text) for no, text in enumerate(lines, 1)
+            if text.strip() and not text.lstrip().startswith("#")]
+    if not rows:
+        raise InputError("readings file is empty: expected the header part,probes,reading", path, 1)
+    head_no, head = rows[0]
+    header = [h.strip().lower() for h in next(csv.reader([head]))]
+    if header != ["part", "probes", "reading"]:
+        raise InputError(f"expected the header part,probes,reading, found {head.strip()!r}",
+                         path, head_no)
+    out = []
+    for no, text in rows[1:]:
+        cells = next(csv.reader([text]))
+        if len(cells) != 3:
+            raise InputError(f"expected 3 cells (part,probes,reading), found {len(cells)}", path, no)
+        part, probes, typed = cells
+        if not part.strip():
+            raise InputError("the part cell is empty", path, no)
+        out.append(observation(board, part, typed, probes.replace(";", ","), path, no))
+    if not out:
+        raise InputError("readings file has a header but no readings", path, head_no)
+    return out
