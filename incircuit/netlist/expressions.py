@@ -159,7 +159,15 @@ class _Walker:
         if isinstance(node, ast.Name) and node.id.startswith("_p"):
             return self.values[int(node.id[2:])]
         if isinstance(node, ast.BinOp) and type(node.op) in _BINARY:
-            return _BINARY[type(node.op)](self.run(node.left), self.run(node.right))
+            # walk the left spine without recursion: long sums stay cheap
+            spine = []
+            while isinstance(node, ast.BinOp) and type(node.op) in _BINARY:
+                spine.append(node)
+                node = node.left
+            value = self.run(node)
+            for op_node in reversed(spine):
+                value = _BINARY[type(op_node.op)](value, self.run(op_node.right))
+            return value
         if isinstance(node, ast.UnaryOp) and isinstance(node.op, (ast.USub, ast.UAdd)):
             sign = -1.0 if isinstance(node.op, ast.USub) else 1.0
             inner = node.operand
