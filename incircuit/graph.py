@@ -30,6 +30,7 @@ answered from that view:
 
 from __future__ import annotations
 
+import difflib
 import math
 from dataclasses import dataclass, field
 from itertools import combinations
@@ -52,6 +53,7 @@ __all__ = [
     "surroundings",
     "equivalent_resistance",
     "tied_nets",
+    "tie_parts",
     "is_tie",
     "pin_roles",
     "PATH_KINDS",
@@ -88,19 +90,23 @@ _UNITS = {"R": "ohm", "C": "F", "L": "H"}
 
 # -- pins and edges ---------------------------------------------------------
 def pin_roles(part: Part) -> tuple[str, ...]:
-    """Names of the part's pins in SPICE order.
+    """Names of the part's pins in SPICE order (an unmodelled part's pin
+    names from its pin roles, else pin numbers).
 
     >>> pin_roles(Part("Q1", "Q", ("C", "B", "E"), model="QN"))
     ('C', 'B', 'E')
     >>> pin_roles(Part("U1", "X", ("A", "B", "C"), model="CHIP"))
     ('1', '2', '3')
+    >>> pin_roles(Part("U1", "X", ("A", "B"), model="CHIP", params={"pin_names": ("IN", "")}))
+    ('IN', '2')
     """
     n = len(part.pins)
     named = {"D": ("A", "K"), "Q": ("C", "B", "E", "S"), "M": ("D", "G", "S", "B"), "J": ("D", "G", "S")}
     roles = named.get(part.kind)
     if roles is not None and n <= len(roles):
         return roles[:n]
-    return tuple(str(i + 1) for i in range(n))
+    names = tuple(part.params.get("pin_names") or ()) if part.kind == "X" else ()  # type: ignore[arg-type]
+    return tuple(str(names[i]).upper() if i < len(names) and names[i] else str(i + 1) for i in range(n))
 
 
 def _model_type(part: Part, board: Board) -> str:
@@ -150,16 +156,44 @@ class _Edge:
     forward: str | None  # "a": conducts roles[0] -> roles[1]
 
 
+def _whole_role(part: Part) -> str | None:
+    """The whole-part role an unmodelled part carries once pin roles are
+    applied (``incircuit.chips``): "short" (fuse, bead, link, closed
+    switch), "open" (connector, crystal, open switch), or None."""
+    if part.kind != "X":
+        return None
+    roles = tuple(part.params.get("roles") or ())  # type: ignore[arg-type]
+    if not roles or roles[0] not in ("short", "open", "switch"):
+        return None
+    if roles[0] == "switch":
+        return "short" if part.params.get("switch_state") == "closed" else "open"
+    return roles[0]
+
+
+def _open_pins(part: Part) -> set[int]:
+    """Pins of an unmodelled part known to connect to nothing inside it."""
+    roles = tuple(part.params.get("roles") or ())  # type: ignore[arg-type]
+    return {i for i, r in enumerate(roles) if r in ("open", "no-connect")}
+
+
 def _edges(board: Board, skip: frozenset[str]) -> Iterator[_Edge]:
     for part in board.parts:
         if part.name in skip or part.kind == "K":
             continue
         roles = pin_roles(part)
+        whole = _whole_role(part)
+        if whole == "open":
+            continue
+        if whole == "short":
+            if len(part.pins) == 2 and part.pins[0] != part.pins[1]:
+                yield _Edge(part, (roles[0], roles[1]), (part.pins[0], part.pins[1]), "R", None)
+            continue
+        closed = _open_pins(part) if part.kind == "X" else set()
         seen: set[frozenset[str]] = set()
         for i, j in combinations(range(len(part.pins)), 2):
             u, v = part.pins[i], part.pins[j]
             key = frozenset((u, v))
-            if u == v or key in seen:  # a pin pair on one net, or a repeat
+            if u == v or key in seen or i in closed or j in closed:  # one net, a repeat, or no inside
                 continue
             seen.add(key)
             ra, rb = roles[i], roles[j]
@@ -190,7 +224,8 @@ def board_graph(board: Board, without: Iterable[str] = ()) -> nx.MultiGraph:
     for e in _edges(board, skip):
         key = e.part.name if len(e.part.pins) == 2 else f"{e.part.name}:{e.roles[0]}-{e.roles[1]}"
         g.add_edge(*e.nets, key=key, part=e.part.name, kind=e.part.kind, roles=e.roles,
-                   pin_nets=e.nets, nature=e.nature, forward=e.forward, value=e.part.value)
+                   pin_nets=e.nets, nature=e.nature, forward=e.forward,
+                   value=_dc_ohms(e.part) if e.part.kind == "X" else e.part.value)
     return g
 
 
@@ -221,12 +256,14 @@ class Link:
 
     @property
     def unit(self) -> str | None:
-        return _UNITS.get(self.kind)
+        return "ohm" if self.nature == "R" else _UNITS.get(self.kind)
 
     def label(self) -> str:
         """``"R14 (4.7 kohm)"``, ``"D3 (DSIG, K->A)"``, ``"U1 (pins 2-4)"``."""
         if self.kind in _UNITS and self.value is not None:
             return f"{self.part} ({format_value(self.value, self.unit)})"
+        if self.kind == "X" and self.nature == "R":
+            return f"{self.part} (short, {format_value(self.value or 0.0, 'ohm')})"
         if self.kind == "X":
             return f"{self.part} (pins {self.via[0]}-{self.via[1]})"
         model = f"{self.model}, " if self.model else ""
@@ -241,7 +278,11 @@ class Path:
         One of :data:`PATH_KINDS`: resistive (only R), capacitive (only C
         or a MOSFET gate), inductive (only L), mixed (R, C and L mixed),
         junction (through a diode or a transistor junction), chip (through a
-        pin of an unmodelled X part; takes precedence over junction).
+        pin of an unmodelled X part; takes precedence over junction). An
+        unmodelled part whose pin roles make it a short (fuse, bead, link,
+        closed switch) counts as a resistor; one that is open (connector,
+        crystal, open switch) and pins with role open or no-connect join
+        nothing.
     parts
         Part names in order from ``nets[0]`` to ``nets[-1]``.
     nets
@@ -420,12 +461,16 @@ def _dc_ohms(part: Part) -> float | None:
         return max(float(part.value), 0.0)
     if part.kind == "L":
         return max(float(part.params.get("dcr", 0.0) or 0.0), 0.0)  # type: ignore[arg-type]
+    if _whole_role(part) == "short" and len(part.pins) == 2:
+        return max(float(part.params.get("short_ohms", 0.0) or 0.0), 0.0)  # type: ignore[arg-type]
     return None
 
 
 def is_tie(part: Part) -> bool:
     """True for a part that acts as a wire: an inductor or a resistor below
-    :data:`TIE_OHMS` (an inductor's ``dcr`` counts)."""
+    :data:`TIE_OHMS` (an inductor's ``dcr`` counts), or an unmodelled part
+    whose pin roles make it a short (fuse, bead, link, closed switch; its
+    ``short_ohms``, a wire when none)."""
     ohms = _dc_ohms(part)
     return ohms is not None and len(set(part.pins)) == 2 and ohms < TIE_OHMS
 
@@ -443,6 +488,17 @@ def tied_nets(board: Board) -> list[frozenset[str]]:
     g.add_edges_from(p.pins[:2] for p in board.parts if is_tie(p))
     groups = [frozenset(c) for c in nx.connected_components(g) if len(c) > 1]
     return sorted(groups, key=lambda s: sorted(s))
+
+
+def tie_parts(board: Board, group: Iterable[str]) -> tuple[str, ...]:
+    """Names of the tie parts that join the nets of one tied ``group``.
+
+    >>> b = Board("t", (Part("L1", "L", ("A", "B"), 1e-6), Part("R1", "R", ("A", "B"), 10.0)))
+    >>> tie_parts(b, tied_nets(b)[0])
+    ('L1',)
+    """
+    nets = set(group)
+    return tuple(p.name for p in board.parts if is_tie(p) and set(p.pins[:2]) <= nets)
 
 
 def equivalent_resistance(board: Board, a: str, b: str, without: Iterable[str] = ()) -> float:
@@ -523,10 +579,10 @@ def _path_kind(links: tuple[Link, ...]) -> str:
 def _make_path(links: tuple[Link, ...], start: str) -> Path:
     kind = _path_kind(links)
     dc: float | None = None
-    if kind in ("resistive", "inductive") or (kind == "mixed" and all(k.kind in "RL" for k in links)):
+    if all(k.nature in ("R", "L") for k in links):
         dc = 0.0
         for k in links:
-            dc += float(k.value or 0.0) if k.kind == "R" else float(k.dcr or 0.0)
+            dc += float(k.value or 0.0) if k.nature == "R" else float(k.dcr or 0.0)
     nets = (start,) + tuple(k.nets[1] for k in links)
     return Path(kind, tuple(k.part for k in links), nets, dc, links)
 
@@ -547,11 +603,12 @@ def _adjacency(board: Board, skip: frozenset[str]) -> dict[str, list[tuple[str, 
     adj: dict[str, list[tuple[str, Link]]] = {}
     for e in _edges(board, skip):
         dcr = e.part.params.get("dcr") if e.part.kind == "L" else None
+        value = _dc_ohms(e.part) if e.part.kind == "X" else e.part.value
         for (u, v), (ru, rv), fwd in (
             (e.nets, e.roles, {"a": True, "b": False, None: None}[e.forward]),
             (e.nets[::-1], e.roles[::-1], {"a": False, "b": True, None: None}[e.forward]),
         ):
-            link = Link(e.part.name, e.part.kind, (ru, rv), (u, v), e.nature, e.part.value,
+            link = Link(e.part.name, e.part.kind, (ru, rv), (u, v), e.nature, value,
                         e.part.model, e.part.tolerance, fwd, float(dcr) if dcr else None)  # type: ignore[arg-type]
             adj.setdefault(u, []).append((v, link))
     return adj
@@ -615,10 +672,20 @@ def _ordered(paths: list[Path]) -> list[Path]:
 
 
 def _check_net(board: Board, net: str) -> str:
+    """The board's name for ``net``; GND means node 0 as in ngspice when the
+    board has no net of that name."""
     key = net.upper()
-    if key not in board.nets:
-        raise InputError(f"no net {net!r} on board {board.name}", board.path)
+    nets = board.nets
+    if key == "GND" and key not in nets and "0" in nets:
+        key = "0"
+    if key not in nets:
+        raise InputError(f"no net {net!r} on this board{_did_you_mean(key, nets)}", board.path)
     return key
+
+
+def _did_you_mean(key: str, names: Iterable[str]) -> str:
+    close = difflib.get_close_matches(key, list(names), n=4, cutoff=0.5)
+    return f" (did you mean {', '.join(close)}?)" if close else ""
 
 
 def between(board: Board, net_a: str, net_b: str, without: Iterable[str] = (),
@@ -648,7 +715,8 @@ def surroundings(board: Board, part: str) -> Surroundings:
     InputError when the board has no such part.
     """
     if not board.has_part(part):
-        raise InputError(f"no part {part!r} on board {board.name}", board.path)
+        names = [q.name for q in board.parts]
+        raise InputError(f"no part {part!r} on this board{_did_you_mean(part.upper(), names)}", board.path)
     p = board.part(part)
     roles = pin_roles(p)
     pairs = []

@@ -347,3 +347,38 @@ def test_unknown_part_or_net_is_an_input_error():
         surroundings(b, "R9")
     with pytest.raises(InputError, match="no net 'Z'"):
         between(b, "A", "Z")
+
+
+def test_unmodelled_parts_follow_their_pin_roles():
+    # roles as incircuit.chips.apply_pin_roles attaches them to a part's params
+    fuse = Part("F1", "X", ("IN", "IN_F"), model="FUSE", params={"roles": ("short", "short"), "short_ohms": 0.05})
+    conn = Part("J1", "X", ("IN", "OUT"), model="CONN", params={"roles": ("open", "open")})
+    sw_open = Part("SW1", "X", ("IN", "OUT"), model="SW", params={"roles": ("switch", "switch"), "switch_state": "open"})
+    chip = Part("U1", "X", ("IN", "NC", "OUT"), model="CHIP",
+                params={"roles": ("input", "no-connect", "output"), "pin_names": ("A", "NC", "Y")})
+    b = Board("t", (R("R1", "IN_F", "OUT", 1e3), fuse, conn, sw_open, chip, R("R2", "NC", "OUT", 10.0)))
+    s = surroundings(b, "R1")
+    assert kinds_and_parts(s) == {("chip", ("F1", "U1"))}  # not via J1, SW1 or the NC pin
+    (p,) = s.paths
+    assert p.links[1].via == ("A", "Y") and p.links[0].nature == "R"
+    assert [sorted(g) for g in tied_nets(b)] == [["IN", "IN_F"]]
+    # a closed switch is a short like the fuse
+    closed = Part("SW1", "X", ("IN", "OUT"), model="SW", params={"roles": ("switch", "switch"), "switch_state": "closed"})
+    b2 = b.with_part(closed)
+    r = surroundings(b2, "R1")
+    (res,) = [q for q in r.paths if q.kind == "resistive"]
+    assert res.parts == ("F1", "SW1") and res.dc_resistance == pytest.approx(0.05, rel=RTOL)
+    assert r.equivalent_resistance == pytest.approx(0.05, rel=RTOL)
+
+
+def test_gnd_means_node_zero_when_the_board_has_no_gnd_net():
+    # ngspice user manual 2.1.4.5: gnd is a synonym of the ground node 0
+    b = Board("t", (R("R1", "A", "0", 1e3), R("R2", "A", "0", 1e3)))
+    assert between(b, "a", "gnd").nets == ("A", "0")
+    assert between(b, "A", "GND").equivalent_resistance == pytest.approx(500.0, rel=RTOL)
+
+
+def test_tie_parts_name_what_ties_a_group():
+    b = Board("t", (L("FB1", "A", "B", 1e-6), R("R0", "B", "C", 0.0), R("R1", "A", "C", 47.0)))
+    (group,) = tied_nets(b)
+    assert graph.tie_parts(b, group) == ("FB1", "R0")
