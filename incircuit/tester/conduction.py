@@ -1,0 +1,166 @@
+"""Discharge and conduction tests: the first steps of every identification.
+
+``discharge`` ties every probe to 0 V (through the low resistors while a
+probe reads above ``discharge.direct_volts``, then through the bare port
+pins) until every probe reads below ``discharge.target_volts``.
+
+``conduction`` drives one probe high and the other low, first through the
+low resistor (about 7 mA) and then through the high one (about 10 uA), and
+samples the part's voltage half-way and at the end of each pulse. When the
+voltage rises during a pulse the driven probe is left floating for a
+moment (the hold): a voltage that stays is stored charge. Each direction
+is then one of:
+
+``capacitive``  rising and holding (stored charge);
+``linear``      conducts like a resistor: the low-resistor sample matches
+                the resistor that explains the high-resistor sample;
+``junction``    conducts far more at the higher current than a resistor
+                would (a forward or broken-down junction);
+``open``        no current at either level.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from ..engines.base import Watch
+from .bench import Bench
+
+__all__ = ["Pulse", "Direction", "Undischargeable", "discharge", "ensure_discharged", "conduction", "pulse"]
+
+
+@dataclass(frozen=True)
+class Pulse:
+    """One conduction pulse as the tester read it (volts over the part, amps)."""
+
+    level: str
+    v_mid: float
+    v_end: float
+    current: float
+    conducting: bool
+    rising: bool
+    holding: bool
+    lsb: float
+    #: Probe voltages at the end, as read: (driven probe, other probe).
+    probes: tuple[float, float]
+
+
+@dataclass(frozen=True)
+class Direction:
+    """Both pulses of one polarity: ``high`` probe driven to the supply."""
+
+    high: int
+    low: int
+    at_low: Pulse
+    at_high: Pulse
+    kind: str
+
+    def apparent_ohms(self, pulse: Pulse) -> float:
+        return pulse.v_end / pulse.current if pulse.current > 0 else float("inf")
+
+
+class Undischargeable(Exception):
+    """The part kept its charge past the discharge timeout."""
+
+
+def discharge(bench: Bench, name: str = "discharge") -> bool:
+    """Discharge the part; False when it cannot be done within the timeout."""
+    p = bench.profile
+    budget = p.discharge_timeout_seconds
+    probes = range(bench.n_probes)
+    for via, level in (("low", p.discharge_direct_volts), ("port", p.discharge_target_volts)):
+        drive = bench.drive({i: ("low", via) for i in probes})
+        rec = bench.run(f"{name} ({via})", drive, p.discharge_check_seconds,
+                        sampled="every probe", formula=f"all probes below {level:g} V")
+        budget -= rec.result.duration
+        if via == "low" and max(bench.adc(v).volts for v in rec.result.volts) < p.discharge_target_volts:
+            return True
+        for _ in probes:
+            volts = [bench.adc(v).volts for v in rec.result.volts]
+            top = max(probes, key=lambda i: volts[i])
+            if volts[top] < level:
+                break
+            if budget <= 0:
+                return False
+            rec = bench.run(f"{name} ({via})", drive, budget, watch=Watch(top, level, rising=False),
+                            sampled=f"probe {top + 1} until below {level:g} V",
+                            formula="watch: probe falls below the level")
+            budget -= rec.result.duration
+            if not rec.result.crossed:
+                return False
+        else:
+            volts = [bench.adc(v).volts for v in rec.result.volts]
+            if max(volts) >= level:
+                return False
+    return True
+
+
+def ensure_discharged(bench: Bench, name: str = "discharge") -> None:
+    """:func:`discharge`, raising :class:`Undischargeable` when it fails."""
+    if not discharge(bench, name):
+        raise Undischargeable(name)
+
+
+def pulse(bench: Bench, high: int, low: int, level: str) -> Pulse:
+    """Drive ``high`` through the ``level`` resistor, ``low`` through its port."""
+    p = bench.profile
+    length = p.conduction_low_seconds if level == "low" else p.conduction_high_seconds
+    drive = bench.drive({high: ("high", level), low: ("low", "port")})
+    r_drive = drive[high].resistance  # type: ignore[union-attr]
+    rec = bench.run(f"conduction {high + 1}->{low + 1} ({level} resistor)", drive, length,
+                    at=(length / 2,), sampled=f"probes {high + 1} and {low + 1}, half-way and at the end",
+                    formula="I = (Vs - Va) / Rk; V = Va - Vb")
+    mid = rec.at(length / 2)
+    a_mid, b_mid = bench.adc(mid[high]), bench.adc(mid[low])
+    a_end, b_end = bench.adc(rec.result.volts[high]), bench.adc(rec.result.volts[low])
+    v_mid = a_mid.volts - b_mid.volts
+    v_end = a_end.volts - b_end.volts
+    lsb = max(a_end.lsb, b_end.lsb)
+    conducting = bench.full_count() - a_end.count >= p.conduction_detect_counts
+    current = (p.supply_volts - a_end.volts) / r_drive if conducting else 0.0
+    rise = v_end - v_mid
+    rising = rise >= p.conduction_rise_counts * lsb and rise >= p.conduction_rise_fraction * abs(v_end)
+    holding = False
+    if rising:
+        hold = bench.run(f"hold {high + 1} ({level} resistor)",
+                         bench.drive({low: ("low", "port")}), p.conduction_hold_seconds,
+                         sampled=f"probe {high + 1} floating", formula="kept >= hold_fraction * V")
+        kept = bench.adc(hold.result.volts[high]).volts - bench.adc(hold.result.volts[low]).volts
+        holding = kept >= p.conduction_hold_fraction * v_end
+    return Pulse(level, v_mid, v_end, max(current, 0.0), conducting, rising, holding, lsb,
+                 (a_end.volts, b_end.volts))
+
+
+def _kind(bench: Bench, high: int, at_low: Pulse, at_high: Pulse) -> str:
+    p = bench.profile
+    if at_low.rising and at_low.holding:
+        return "capacitive"
+    if at_low.conducting:
+        if at_high.rising and at_high.holding:
+            return "junction"  # charge seen only at the small current: a junction beside a capacitor
+        if not at_high.conducting:
+            return "junction"
+        return "linear" if _linear(bench, high, at_low, at_high) else "junction"
+    if at_high.rising and at_high.holding:
+        return "capacitive"
+    if at_high.conducting:
+        return "linear" if _linear(bench, high, at_low, at_high) else "junction"
+    return "open"
+
+
+def _linear(bench: Bench, high: int, at_low: Pulse, at_high: Pulse) -> bool:
+    """Does the low-resistor pulse read what a resistor seen at the high level would give?"""
+    p = bench.profile
+    r_seen = at_high.v_end / at_high.current
+    r_loop = p.port_high_ohms + p.probe_ohms(high, "low") + p.port_low_ohms
+    expected = p.supply_volts * r_seen / (r_seen + r_loop)
+    return at_low.v_end >= expected * (1.0 - p.conduction_linear_tolerance) - 2 * at_low.lsb
+
+
+def conduction(bench: Bench, high: int, low: int) -> Direction:
+    """Both conduction pulses of one polarity (raises Undischargeable)."""
+    at_low = pulse(bench, high, low, "low")
+    ensure_discharged(bench)
+    at_high = pulse(bench, high, low, "high")
+    ensure_discharged(bench)
+    return Direction(high, low, at_low, at_high, _kind(bench, high, at_low, at_high))
