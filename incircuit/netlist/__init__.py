@@ -21,7 +21,7 @@ from collections import Counter
 
 from ..errors import NetlistError
 from ..model import Board, Part
-from .flatten import Flat, flatten
+from .flatten import flatten
 from .includes import expand, read_netlist_file
 from .lexer import Card, read_cards
 from .parser import Deck, parse_cards
@@ -71,8 +71,8 @@ def _build(title: str, cards: list[Card], path: str, base: str | None, keep_sour
         raise NetlistError("empty netlist: no parts (R C L K D Q M J or X) found", path, 1)
     notes.extend(deck.notes)
     notes.extend(_limit(flat.notes))
-    notes.extend(_board_checks(flat.parts, flat))
-    skipped = _skipped_note(deck, flat)
+    notes.extend(_board_checks(flat.parts))
+    skipped = _skipped_note(deck)
     if skipped:
         notes.append(skipped)
     return Board(deck.title if deck.title is not None else title, tuple(flat.parts), flat.models,
@@ -98,7 +98,7 @@ def _where(part: Part) -> str:
     return f"{part.location}: " if part.location else ""
 
 
-def _board_checks(parts: list[Part], flat: Flat) -> list[str]:
+def _board_checks(parts: list[Part]) -> list[str]:
     notes: list[str] = []
     pins: Counter[str] = Counter()
     owner: dict[str, Part] = {}
@@ -115,11 +115,9 @@ def _board_checks(parts: list[Part], flat: Flat) -> list[str]:
     return _limit(notes)
 
 
-def _skipped_note(deck: Deck, flat: Flat) -> str | None:
+def _skipped_note(deck: Deck) -> str | None:
     """One warning listing every skipped kind, in order of first appearance."""
-    kinds: dict[str, tuple[int, Card]] = dict(deck.skipped)
-    for mtype, (count, card) in flat.skipped_models.items():
-        kinds[f".model {mtype}"] = (count, card)
+    kinds = deck.skipped
     if not kinds:
         return None
     total = sum(count for count, _ in kinds.values())

@@ -55,7 +55,6 @@ class Flat:
     models: dict[str, Model] = field(default_factory=dict)
     notes: list[str] = field(default_factory=list)
     first_seen: dict[str, Card] = field(default_factory=dict)
-    skipped_models: dict[str, tuple[int, Card]] = field(default_factory=dict)
 
 
 class _Context:
@@ -66,7 +65,13 @@ class _Context:
         self.keep_sources = keep_sources
         self.flat = Flat()
         self.gnd_noted = False
-        self.global_params: dict[str, float] = {}
+        self.skipped_cards: set[int] = set()
+
+    def skip(self, kind: str, card: Card) -> None:
+        """Count a skipped card once, however many calls copy it."""
+        if id(card) not in self.skipped_cards:
+            self.skipped_cards.add(id(card))
+            self.deck.skip(kind, card)
 
     def add(self, part: Part, card: Card) -> None:
         if part.name in self.flat.first_seen:
@@ -286,8 +291,7 @@ def _expand(level: _Level, body: Body) -> None:
             board_name = level.prefix + item.name
             model = _model(level, item, board_name)
             if model.type not in BOARD_MODEL_TYPES and model.type not in VALUE_MODEL_TYPES:
-                count, first = ctx.flat.skipped_models.get(model.type, (0, item.card))
-                ctx.flat.skipped_models[model.type] = (count + 1, first)
+                ctx.skip(f".model {model.type}", item.card)
             if item.name in models and models[item.name][0] == board_name:
                 level.note(item.card, f"model {item.name} defined again; the later card is used")
             models[item.name] = (board_name, model)
@@ -304,7 +308,7 @@ def _expand(level: _Level, body: Body) -> None:
             try:
                 part = build_part(letter, item.fields, level, item.card)
             except Behavioural as skipped:
-                ctx.deck.skip(str(skipped), item.card)
+                ctx.skip(str(skipped), item.card)
                 continue
             ctx.add(part, item.card)
             if letter == "L":
@@ -316,7 +320,7 @@ def _expand(level: _Level, body: Body) -> None:
         elif letter == "K":
             couplings.append(item)
         else:  # pragma: no cover - the parser keeps only the letters above
-            ctx.deck.skip(SKIPPED_ELEMENTS.get(letter, letter), item.card)
+            ctx.skip(SKIPPED_ELEMENTS.get(letter, letter), item.card)
     for item in couplings:
         ctx.add(_coupling(level, item, inductors), item.card)
 

@@ -130,6 +130,7 @@ def expand(
     out: list[Card] = []
     i = 0
     in_control = False
+    if_depth = 0
     while i < len(cards):
         card = cards[i]
         key = _keyword(card)
@@ -146,9 +147,13 @@ def expand(
             break
         if key == ".endl":
             continue
+        if key in (".if", ".endif"):
+            if_depth += 1 if key == ".if" else -1
         if not (key.startswith(".inc") or key == ".lib"):
             out.append(card)
             continue
+        if if_depth > 0:
+            raise card.error(f"{key} is not allowed inside .if (ngspice manual 2.13)")
         args = _arguments(card)
         section = ""
         if key == ".lib":

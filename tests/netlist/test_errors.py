@@ -59,6 +59,7 @@ CASES = [
     ("if without endif", "R1 a b 1\n.if (1)\nR2 a b 1\n", 3, ".if without .endif"),
     ("endif without if", "R1 a b 1\n.endif\n", 3, ".endif without .if"),
     ("param inside if", "R1 a b 1\n.if (1)\n.param a=1\n.endif\n", 4, ".param is not allowed inside .if"),
+    ("include inside if", "R1 a b 1\n.if (1)\n.include x.inc\n.endif\n", 4, ".include is not allowed inside .if"),
     ("bad .param", ".param = 3\nR1 a b 1\n", 2, "expected name=value"),
     ("include without a folder", ".include x.lib\nR1 a b 1\n", 2, "cannot include 'x.lib'"),
     ("empty netlist", "* nothing\n.tran 1n 1u\n", 1, "empty netlist"),

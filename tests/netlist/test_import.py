@@ -340,3 +340,9 @@ def test_board_path_and_part_locations():
     board = parse_text("t\n\nR1 a b 1k\n", path="demo.cir")
     assert board.path == "demo.cir"
     assert str(board.part("R1").location) == "demo.cir:3"
+
+
+def test_skipped_cards_inside_subcircuits_count_once():
+    text = "t\n.subckt s a b\nE1 a b a 0 2\nS1 a b a 0 sw\n.model sw SW\nR1 a b 1\n.ends\nX1 n1 n2 s\nX2 n1 n2 s\nX3 n1 n2 s\n"
+    warning = next(n for n in parse_text(text).notes if "skipped" in n)
+    assert "3 card(s)" in warning and ".model SW x1" in warning
