@@ -79,12 +79,16 @@ def _build(title: str, cards: list[Card], path: str, base: str | None, keep_sour
                  tuple(notes), path)
 
 
-def _limit(notes: list[str]) -> list[str]:
-    """At most MAX_NOTES_PER_KIND notes of one kind (by their wording after the name)."""
+def _limit(notes: list[str], kind_of=None) -> list[str]:
+    """At most MAX_NOTES_PER_KIND notes of one kind.
+
+    ``kind_of(note)`` names the kind; by default the wording after the
+    position and the part name, up to the next colon.
+    """
     out: list[str] = []
     counts: Counter[str] = Counter()
     for note in notes:
-        kind = note.split(": ", 2)[-1].split(":")[0]
+        kind = kind_of(note) if kind_of else note.split(": ", 2)[-1].split(":")[0]
         counts[kind] += 1
         if counts[kind] <= MAX_NOTES_PER_KIND:
             out.append(note)
@@ -99,7 +103,8 @@ def _where(part: Part) -> str:
 
 
 def _board_checks(parts: list[Part]) -> list[str]:
-    notes: list[str] = []
+    tied: list[str] = []
+    single: list[str] = []
     pins: Counter[str] = Counter()
     owner: dict[str, Part] = {}
     for part in parts:
@@ -107,12 +112,12 @@ def _board_checks(parts: list[Part]) -> list[str]:
             pins[net] += 1
             owner.setdefault(net, part)
         if len(part.pins) >= 2 and len(set(part.pins)) == 1:
-            notes.append(f"{_where(part)}{part.name}: part tied to one net only (all pins on {part.pins[0]})")
+            tied.append(f"{_where(part)}{part.name}: part tied to one net only (all pins on {part.pins[0]})")
     for net, count in pins.items():
         if count == 1:
             part = owner[net]
-            notes.append(f"{_where(part)}net {net} has one pin only ({part.name})")
-    return _limit(notes)
+            single.append(f"{_where(part)}net {net} has one pin only ({part.name})")
+    return _limit(tied, lambda n: "part tied to one net only") + _limit(single, lambda n: "net has one pin only")
 
 
 def _skipped_note(deck: Deck) -> str | None:

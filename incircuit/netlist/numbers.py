@@ -48,6 +48,7 @@ _EXPONENTS = {"MEG": 6, "T": 12, "G": 9, "K": 3, "M": -3, "U": -6, "N": -9, "P":
 
 _NUMBER = re.compile(r"([+-]?(?:\d+\.?\d*|\.\d+))(?:[eE]([+-]?\d+))?")
 _LETTERS = re.compile(r"[A-Za-z]*")
+_RKM = re.compile(r"\d*[RKMLUNPF]\d", re.IGNORECASE)
 
 
 class NumberError(ValueError):
@@ -67,7 +68,8 @@ def parse_number(text: str) -> float:
         raise NumberError(f"bad number {text!r}")
     rest = text[m.end():]
     if not _LETTERS.fullmatch(rest):
-        raise NumberError(f"bad number {text!r}")
+        hint = " (RKM notation is not read: write 4.7k for 4K7)" if _RKM.match(text) else ""
+        raise NumberError(f"bad number {text!r}{hint}")
     exp_text = m.group(2) or "0"
     exponent = int(exp_text) if len(exp_text) < 9 else (-(10**6) if exp_text[0] == "-" else 10**6)
     upper = rest.upper()

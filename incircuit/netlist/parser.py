@@ -211,6 +211,9 @@ def parse_cards(cards: list[Card]) -> Deck:
             if key == ".control":
                 while i < n and _keyword(cards[i]) != ".endc":
                     i += 1
+                if i >= n:
+                    deck.notes.append(f"{card.path}:{card.line}: .control without .endc: "
+                                      "the rest of the netlist is skipped")
                 i += 1
                 deck.skip(".control block", card)
             elif key == ".model":

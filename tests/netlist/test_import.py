@@ -346,3 +346,18 @@ def test_skipped_cards_inside_subcircuits_count_once():
     text = "t\n.subckt s a b\nE1 a b a 0 2\nS1 a b a 0 sw\n.model sw SW\nR1 a b 1\n.ends\nX1 n1 n2 s\nX2 n1 n2 s\nX3 n1 n2 s\n"
     warning = next(n for n in parse_text(text).notes if "skipped" in n)
     assert "3 card(s)" in warning and ".model SW x1" in warning
+
+
+def test_control_without_endc_is_noted():
+    board = parse_text("t\nR1 a b 1k\n.control\nrun\nR2 a b 1k\n")
+    assert [p.name for p in board.parts] == ["R1"]
+    assert "<text>:3: .control without .endc: the rest of the netlist is skipped" in board.notes
+
+
+def test_many_notes_of_one_kind_are_summed_up():
+    from incircuit.netlist import MAX_NOTES_PER_KIND
+    n = MAX_NOTES_PER_KIND + 5
+    board = parse_text("t\n" + "".join(f"R{i} a{i} b{i} 1k\n" for i in range(n)))
+    single = [x for x in board.notes if "has one pin only" in x and x.startswith("<text>:")]
+    assert len(single) == MAX_NOTES_PER_KIND
+    assert f"... and {2 * n - MAX_NOTES_PER_KIND} more notes like 'net has one pin only'" in board.notes
