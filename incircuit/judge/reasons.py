@@ -45,10 +45,17 @@ _KIND_WORD = {"resistor": "a resistor", "capacitor": "a capacitor", "inductor": 
               "unreadable": "no stable reading"}
 
 
-def reading_text(r: Reading) -> str:
-    """``"10 kohm"``, ``"a junction (612 mV)"``, ``"nothing"``."""
+def reading_text(r: Reading, detail: bool = False) -> str:
+    """``"10 kohm"``, ``"a junction (612 mV)"``, ``"nothing"``; with
+    ``detail`` a capacitor's ESR and self-discharge follow."""
     if r.value is not None and r.kind in ("resistor", "capacitor", "inductor"):
-        return format_value(r.value, r.unit)
+        text = format_value(r.value, r.unit)
+        if detail and r.kind == "capacitor":
+            if r.extra.get("esr") is not None:
+                text += f", ESR {format_value(float(r.extra['esr']), 'ohm')}"  # type: ignore[arg-type]
+            if r.extra.get("self_discharge"):
+                text += f", drops {float(r.extra['self_discharge']) * 100:.0f} %"  # type: ignore[arg-type]
+        return text
     word = _KIND_WORD.get(r.kind, r.kind)
     return f"{word} ({format_value(r.value, r.unit)})" if r.value is not None else word
 

@@ -27,7 +27,7 @@ __all__ = [
     "VERDICTS", "VERDICT_RANK", "MASKED_SENSITIVITY", "PERTURBATION", "JUNCTION_IS_FACTOR",
     "SEMICONDUCTOR_PARAMETER", "DEFAULT_TOLERANCE", "READING_TOLERANCE", "DETECT_MARGIN",
     "CONDUCTING_CURRENT", "CURRENT_SHARE_SHOWN", "MAX_NEIGHBOUR_PARTS", "MAX_GUARD_NETS",
-    "METER_JUNCTION_SHARE",
+    "METER_JUNCTION_SHARE", "ESR_COUNTS", "SELF_DISCHARGE_MARGIN",
 ]
 
 #: Verdicts, best first.
@@ -74,6 +74,15 @@ READING_TOLERANCE = MappingProxyType({"D": 0.05, "Q": 0.10, "M": 0.10, "J": 0.10
 #: already in the band): simulated readings carry timing and quantisation
 #: steps of about a per cent.
 DETECT_MARGIN = 0.01
+
+#: A capacitor's healthy ESR range is widened by this many steps of the
+#: tester's ESR resolution (its reading moves by about one step between runs).
+ESR_COUNTS = 2.0
+
+#: A capacitor's healthy self-discharge (the relative drop of its voltage
+#: while the probes float) is widened by this much: a few ADC counts of a
+#: 10-bit converter near full scale (common practice).
+SELF_DISCHARGE_MARGIN = 0.02
 
 #: A junction counts as conducting when its Shockley current reaches this
 #: (A): a tenth of what the tester drives through its 470 kohm resistor

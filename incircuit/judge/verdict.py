@@ -19,9 +19,11 @@ from __future__ import annotations
 
 import time
 from dataclasses import dataclass, field
+from functools import partial
 from typing import Sequence
 
 from ..model import Board, Part, Reading
+from ..predict import identify as _identify
 from ..units import format_value
 from .advice import Advice, advise
 from .band import HealthyBand, ToleranceBand, part_tolerance
@@ -129,9 +131,9 @@ class Judgement:
         describe = getattr(self.band, "describe", None)
         lines.append("faults" + (f" (healthy: {describe()})" if describe else "") + ":")
         for f in self.faults:
-            shown = reading_text(f.reading) if f.reading else f"not simulated ({f.error})"
+            shown = reading_text(f.reading, detail=True) if f.reading else f"not simulated ({f.error})"
             mark = "detectable" if f.detectable else "NOT detectable"
-            lines.append(f"  {f.fault.describe():<28} -> {shown:<28} {mark}")
+            lines.append(f"  {f.fault.describe():<24} -> {shown:<36} {mark}")
         lines.append("lift plan (best first):")
         for i, x in enumerate(self.lift[:5], 1):
             shown = reading_text(x.reading) if x.reading else "-"
@@ -174,8 +176,12 @@ def _lift(runs: Runs, board: Board, part: Part, probes: Sequence[str], iso: Read
     def distance(x: LiftOutcome) -> float:
         if x.reading is None or x.reading.value is None or not iso.value:
             return float("inf")
-        return abs(x.reading.value - iso.value) / abs(iso.value)
-    return sorted(out, key=lambda x: (VERDICT_RANK[x.verdict], not x.action.own, distance(x)))
+        return round(abs(x.reading.value - iso.value) / abs(iso.value), 3)
+
+    def crowding(x: LiftOutcome) -> int:
+        # equal outcomes: the leg on the less crowded net (less copper to heat)
+        return len(board.parts_on(x.action.net))
+    return sorted(out, key=lambda x: (VERDICT_RANK[x.verdict], not x.action.own, distance(x), crowding(x)))
 
 
 def judge(board: Board, part: str, prediction, profile, engine: str = "analytic",
@@ -195,11 +201,12 @@ def judge(board: Board, part: str, prediction, profile, engine: str = "analytic"
     bench
         Bench instrument profiles for the advice (None: the shipped ones).
     identify
-        The identification function (default :func:`incircuit.predict.identify`).
+        The identification function (default :func:`incircuit.predict.identify`
+        without trace samples, which the judge does not need).
     """
     started = time.perf_counter()
     if identify is None:
-        from ..predict import identify  # noqa: PLC0415  (judge sits above predict)
+        identify = partial(_identify, trace_points=0)
     p = board.part(part)
     probes = tuple(probes if probes is not None else prediction.probes)
     runs = Runs(identify, profile, engine)
