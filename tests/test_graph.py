@@ -325,7 +325,7 @@ def test_paths_longer_than_the_limit_are_not_listed_but_conduct():
 
 
 def test_search_step_budget_sets_truncated(monkeypatch):
-    monkeypatch.setattr(graph, "MAX_SEARCH_STEPS", 3)
+    monkeypatch.setattr(graph.paths, "MAX_SEARCH_STEPS", 3)
     nets = [f"N{i}" for i in range(6)]
     parts = [R(f"R{i}{j}", a, z, 1e3) for i, a in enumerate(nets) for j, z in enumerate(nets) if i < j]
     assert surroundings(Board("k6", tuple(parts)), "R01").truncated
