@@ -90,7 +90,7 @@ class _Level:
     """One scope: the top level or one subcircuit call."""
 
     def __init__(self, ctx: _Context, prefix: str, pins: dict[str, str], params: dict[str, float],
-                 failed: dict[str, NetlistError], models: dict[str, tuple[str, Model]],
+                 failed: dict[str, str], models: dict[str, tuple[str, Model]],
                  subckts: dict[str, Subckt], stack: tuple[Subckt, ...]):
         self.ctx = ctx
         self.prefix = prefix
