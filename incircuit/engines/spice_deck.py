@@ -13,9 +13,9 @@ What the deck adds to the board (see ``docs/engines.md``, "ngspice engine"):
   is an ordinary floating net like any other and gets a generated name;
 * every net has :data:`LEAK` ohms to the tester's ground (like SPICE's
   gmin) so that the matrix of a floating board is never singular;
-* every island of the board (nets joined by parts) that holds no probe with
-  stray capacitance gets a small capacitance to ground on one net (a probe
-  net if it has one): :data:`ISLAND_C` or :data:`ISLAND_FRACTION` of the
+* every island of the board (nets joined by parts) that holds capacitors,
+  junctions or a probe, but no probe with stray capacitance, gets a small
+  capacitance to ground on one net (a probe net if it has one): :data:`ISLAND_C` or :data:`ISLAND_FRACTION` of the
   island's capacitors, whichever is larger. Without it the island's
   common-mode voltage hangs on the leaks alone and a short step with a
   large capacitor is numerically singular;
@@ -58,7 +58,7 @@ ISLAND_C = 1e-15
 #: ... or this fraction of the island's capacitance, when larger.
 ISLAND_FRACTION = 1e-9
 #: ngspice's ``tstep`` as a fraction of the largest step.
-FIRST_STEP = 1e-2
+FIRST_STEP = 1e-4
 #: Smallest Thevenin resistance written for a driven probe (ohm).
 MIN_SOURCE_R = 1e-3
 
@@ -417,12 +417,12 @@ def _anchors(circuit: Circuit, node_of: Mapping[str, str], probes: Sequence[str]
     held_roots = {islands.find(n) for n in held}
     farads: dict[str, float] = {}
     for e in circuit.elements:
-        if e.kind == "C" and e.value:
+        if e.kind in ("C", "D", "Q", "M", "J"):  # junctions have capacitance too
             root = islands.find(node_of[e.nodes[0]])
-            farads[root] = farads.get(root, 0.0) + abs(float(e.value))
+            farads[root] = farads.get(root, 0.0) + (abs(float(e.value or 0.0)) if e.kind == "C" else 0.0)
     chosen: dict[str, str] = {}
     for node in [*probes, *sorted(set(node_of.values()), key=lambda n: int(n[1:]))]:
         root = islands.find(node)
-        if root not in held_roots:
+        if root not in held_roots and (root in farads or node in probes):
             chosen.setdefault(root, node)
     return tuple((node, max(ISLAND_C, ISLAND_FRACTION * farads.get(root, 0.0))) for root, node in chosen.items())
