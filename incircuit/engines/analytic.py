@@ -227,12 +227,13 @@ class AnalyticSession:
             remaining = duration - t
             ev = first_event(traj.combo(W, levels), remaining, traj.rates) if len(what) else None
             span = remaining if ev is None else ev[0]
-            mask = ~filled & (ts <= t + span) & (ts >= t)
+            end = duration if ev is None else t + span
+            mask = ~filled & (ts <= end) & (ts >= t)
             if mask.any():
-                samples[mask] = traj.nets(ts[mask] - t)[:, probes]
+                samples[mask] = traj.nets(np.minimum(ts[mask] - t, span))[:, probes]
                 filled |= mask
             self._x, self._i = traj.state(span)
-            t += span
+            t = end
             if ev is None:
                 break
             kind = what[ev[1]]

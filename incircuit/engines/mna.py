@@ -36,7 +36,6 @@ import scipy.linalg as sla
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
-from ..errors import EngineError
 from .branches import Branches
 from .pwl import Curve
 
@@ -161,7 +160,7 @@ def reduce_network(
 
     parent: dict[str, str] = {}
     if prune:
-        items = _prune(items, set(probes), parent)
+        items = _prune(items, set(probes), parent, coupled)
     alive = {n for it in items for n in it[1:3]} | set(probes)
 
     kept_set = set(probes)
@@ -265,31 +264,43 @@ def reduce_network(
     )
 
 
-def _prune(items: list[list], probes: set[str], parent: dict[str, str]) -> list[list]:
-    """Remove dangling branches repeatedly; ``parent`` records where each went."""
-    ends: dict[str, list[int]] = defaultdict(list)
+def _prune(items: list[list], probes: set[str], parent: dict[str, str], coupled: set[str]) -> list[list]:
+    """Remove dangling branches repeatedly; ``parent`` records where each went.
+
+    A net is dangling when it is not probed and all its branches lead to one
+    other net: no current can enter it, so (starting discharged, with every
+    junction passing zero current at zero volts) it stays at that net's
+    voltage. A coupled inductor among them could be driven magnetically, so
+    such nets stay.
+    """
+    ends: dict[str, set[int]] = defaultdict(set)
     for k, it in enumerate(items):
-        ends[it[1]].append(k)
-        ends[it[2]].append(k)
+        ends[it[1]].add(k)
+        ends[it[2]].add(k)
     removed = [False] * len(items)
-    degree = {n: len(v) for n, v in ends.items()}
-    queue = [n for n, d in degree.items() if d == 1 and n not in probes]
+
+    def leaf_of(net: str) -> str | None:
+        others = set()
+        for k in ends[net]:
+            it = items[k]
+            if it[0] == "L" and it[4] in coupled:
+                return None
+            others.add(it[2] if it[1] == net else it[1])
+        return next(iter(others)) if len(others) == 1 else None
+
+    queue = [n for n in ends if n not in probes]
     while queue:
         net = queue.pop()
-        if degree[net] != 1:
+        if net in parent or not ends[net]:
             continue
-        k = next(k for k in ends[net] if not removed[k])
-        removed[k] = True
-        it = items[k]
-        other = it[2] if it[1] == net else it[1]
-        if other == net:
+        other = leaf_of(net)
+        if other is None or other == net:
             continue
+        for k in ends[net]:
+            removed[k] = True
+            ends[other].discard(k)
+        ends[net] = set()
         parent[net] = other
-        degree[net] = 0
-        degree[other] -= 1
-        if degree[other] == 1 and other not in probes:
+        if other not in probes:
             queue.append(other)
-    out = [it for k, it in enumerate(items) if not removed[k]]
-    if not out and not probes:
-        raise EngineError("nothing left to simulate")
-    return out
+    return [it for k, it in enumerate(items) if not removed[k]]

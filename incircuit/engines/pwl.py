@@ -6,7 +6,7 @@ Semiconductor Devices*, the ideal-diode equation)
     V(I) = n Vt ln(1 + I / Is) + I rs,        Vt = k T / q,
 
 with T = 300.15 K (27 degC, SPICE's default nominal temperature), so
-``Vt = 25.864 mV``. :func:`junction_curve` places knots on that curve at
+``Vt = 25.865 mV``. :func:`junction_curve` places knots on that curve at
 currents spanning the tester's range and joins them by straight chords; the
 chain is monotone, convex on the forward side, continuous, and exact at the
 knots. Between knots the chord voltage is low by at most
@@ -17,8 +17,8 @@ exactly.
 
 Knots, from the left:
 
-* reverse breakdown (only when ``bv`` is finite): currents ``-ibv*...``
-  following ``V = -bv - n Vt ln(I / ibv) - I rs`` for I from 1 uA up;
+* reverse breakdown (only when ``bv`` is finite): the same currents,
+  negated, on ``V = -bv - n Vt ln(I / ibv) - I rs`` (through ``(-bv, -ibv)``);
 * reverse saturation at ``V = -5 n Vt`` (``I = -Is (1 - e^-5)``), the origin;
 * forward currents 1 nA, 10 nA, 100 nA, then ``per_decade`` per decade from
   1 uA to 1 A (those below ``Is`` are skipped).
@@ -60,7 +60,7 @@ __all__ = [
 BOLTZMANN = 1.380649e-23  # J/K, exact (SI 2019)
 CHARGE = 1.602176634e-19  # C, exact (SI 2019)
 TEMPERATURE = 300.15  # K: 27 degC, SPICE's default nominal temperature (TNOM)
-VT = BOLTZMANN * TEMPERATURE / CHARGE  # 25.864 mV
+VT = BOLTZMANN * TEMPERATURE / CHARGE  # 25.865 mV
 
 #: Forward knot currents below 1 uA (one per decade; the tester hardly sees these).
 _LOW_CURRENTS = (1e-9, 1e-8, 1e-7)
@@ -146,17 +146,15 @@ def junction_curve(
     if not (is_ > 0 and n > 0 and rs >= 0):
         raise ValueError(f"bad junction parameters is={is_} n={n} rs={rs}")
     nvt = n * VT
-    fwd = [c for c in _LOW_CURRENTS] + [
+    currents = list(_LOW_CURRENTS) + [
         1e-6 * 10 ** (k / per_decade) for k in range(int(round(per_decade * math.log10(i_max / 1e-6))) + 1)
     ]
-    fwd = [c for c in fwd if c >= is_]
+    fwd = [c for c in currents if c >= is_]
     v = [-_REVERSE_U * nvt, 0.0] + [shockley_voltage(c, is_, n, rs) for c in fwd]
     i = [-is_ * -math.expm1(-_REVERSE_U), 0.0] + fwd
     if math.isfinite(bv) and bv > 0:
         rev_v, rev_i = [], []
-        for c in fwd:
-            if c < 1e-6:
-                continue
+        for c in currents:
             vb = -bv - nvt * math.log(c / ibv) - c * rs
             if vb < v[0] - nvt:
                 rev_v.append(vb)
