@@ -7,6 +7,8 @@ from typing import Iterable
 
 import networkx as nx
 import numpy as np
+from scipy import sparse
+from scipy.sparse.linalg import spsolve
 
 from ..model import Board, Part
 from .edges import dc_ohms
@@ -61,8 +63,8 @@ def equivalent_resistance(board: Board, a: str, b: str, without: Iterable[str] =
     the parts named in ``without``; ``inf`` when they do not connect the nets.
 
     Zero-ohm parts merge their nets; the rest form a weighted Laplacian,
-    solved with ``b`` grounded (equal to the pseudo-inverse form of Klein &
-    Randic 1993).
+    solved (sparse LU) with ``b`` grounded, which equals the pseudo-inverse
+    form of Klein & Randic 1993.
 
     >>> b = Board("t", (Part("R1", "R", ("A", "B"), 100.0), Part("R2", "R", ("A", "B"), 100.0)))
     >>> equivalent_resistance(b, "A", "B")
@@ -105,14 +107,22 @@ def equivalent_resistance(board: Board, a: str, b: str, without: Iterable[str] =
         return math.inf
     nodes = [n for n in component if n != rb]
     index = {n: i for i, n in enumerate(nodes)}
-    lap = np.zeros((len(nodes), len(nodes)))
+    rows: list[int] = []
+    cols: list[int] = []
+    vals: list[float] = []
     for u, v, data in g.subgraph(component).edges(data=True):
         w = data["g"]
         for x, y in ((u, v), (v, u)):
             if x in index:
-                lap[index[x], index[x]] += w
+                rows.append(index[x])
+                cols.append(index[x])
+                vals.append(w)
                 if y in index:
-                    lap[index[x], index[y]] -= w
-    rhs = np.zeros(len(nodes))
+                    rows.append(index[x])
+                    cols.append(index[y])
+                    vals.append(-w)
+    n = len(nodes)
+    lap = sparse.csc_matrix((vals, (rows, cols)), shape=(n, n))  # duplicates add up
+    rhs = np.zeros(n)
     rhs[index[ra]] = 1.0
-    return float(np.linalg.solve(lap, rhs)[index[ra]])
+    return float(np.atleast_1d(spsolve(lap, rhs))[index[ra]])

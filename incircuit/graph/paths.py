@@ -4,9 +4,7 @@ from __future__ import annotations
 
 import difflib
 from itertools import combinations
-from typing import Iterable
-
-import networkx as nx
+from typing import Callable, Iterable
 
 from ..errors import InputError
 from ..model import Board
@@ -52,20 +50,30 @@ def _make_path(links: tuple[Link, ...], start: str) -> Path:
     return Path(kind, tuple(k.part for k in links), nets, dc, links)
 
 
-#: What each kind's search may cross; a kind keeps only the paths that
-#: classify as that kind (a mixed search also meets resistive paths).
-_STAGES = (
-    ("resistive", frozenset({"R"})),
-    ("capacitive", frozenset({"C", "gate"})),
-    ("inductive", frozenset({"L"})),
-    ("mixed", frozenset({"R", "C", "L", "gate"})),
-    ("junction", frozenset({"R", "C", "L", "gate", "junction"})),
-    ("chip", frozenset({"R", "C", "L", "gate", "junction", "chip"})),
+#: Per kind: the natures its search may cross, the bit each nature sets in
+#: the path's mask, and the masks that make a path of that kind. The masks
+#: steer the search: a junction search never walks a branch that cannot
+#: reach the far net through a junction within the length limit.
+_R, _C, _L, _J, _X = 1, 2, 4, 8, 16
+_STAGES: tuple[tuple[str, frozenset[str], dict[str, int], object], ...] = (
+    ("resistive", frozenset({"R"}), {}, lambda m: True),
+    ("capacitive", frozenset({"C", "gate"}), {}, lambda m: True),
+    ("inductive", frozenset({"L"}), {}, lambda m: True),
+    ("mixed", frozenset({"R", "C", "L", "gate"}), {"R": _R, "C": _C, "gate": _C, "L": _L},
+     lambda m: bin(m).count("1") >= 2),
+    ("junction", frozenset({"R", "C", "L", "gate", "junction"}), {"junction": _J}, lambda m: bool(m & _J)),
+    ("chip", frozenset({"R", "C", "L", "gate", "junction", "chip"}), {"chip": _X}, lambda m: bool(m & _X)),
 )
 
+_Adjacency = dict[str, list[tuple[str, Link]]]
 
-def _adjacency(board: Board, skip: frozenset[str]) -> dict[str, list[tuple[str, Link]]]:
-    adj: dict[str, list[tuple[str, Link]]] = {}
+
+class _Cut(Exception):
+    """The count or step limit ended one kind's search."""
+
+
+def _adjacency(board: Board, skip: frozenset[str]) -> _Adjacency:
+    adj: _Adjacency = {}
     for e in edges(board, skip):
         dcr = e.part.params.get("dcr") if e.part.kind == "L" else None
         value = dc_ohms(e.part) if e.part.kind == "X" else e.part.value
@@ -79,55 +87,91 @@ def _adjacency(board: Board, skip: frozenset[str]) -> dict[str, list[tuple[str, 
     return adj
 
 
-def _search_kind(adj: dict[str, list[tuple[str, Link]]], a: str, b: str, kind: str,
-                 natures: frozenset[str]) -> tuple[list[Path], bool]:
+def _distances(sub: dict[str, list[tuple[str, Link, int]]], b: str, masks: list[int],
+               accept: Callable[[int], bool]) -> dict[tuple[str, int], int]:
+    """Fewest hops from (net, mask so far) to ``b`` ending in an accepted mask
+    (breadth-first, backwards over the product of nets and masks)."""
+    back: dict[str, list[tuple[str, int]]] = {}
+    for u, links in sub.items():
+        for v, _, bit in links:
+            back.setdefault(v, []).append((u, bit))
+    dist = {(b, m): 0 for m in masks if accept(m)}
+    frontier = list(dist)
+    for hops in range(1, MAX_PATH_PARTS + 1):
+        nxt = []
+        for v, m2 in frontier:
+            for u, bit in back.get(v, ()):
+                if bit & ~m2:
+                    continue  # this edge would set a bit m2 lacks
+                for m in ((m2, m2 & ~bit) if bit else (m2,)):  # the masks that become m2 here
+                    if (u, m) not in dist:
+                        dist[(u, m)] = hops
+                        nxt.append((u, m))
+        frontier = nxt
+    return dist
+
+
+def _search_kind(adj: _Adjacency, a: str, b: str, stage) -> tuple[list[Path], bool]:
     """Paths of one kind, shortest first (iterative deepening, pruned by the
-    hop distance to ``b``); True when the count or step limit cut the list."""
-    sub = {u: [(v, k) for v, k in links if k.nature in natures] for u, links in adj.items()}
-    g = nx.Graph()
-    g.add_nodes_from((a, b))
-    g.add_edges_from((u, v) for u, links in sub.items() for v, _ in links)
-    dist = nx.single_source_shortest_path_length(g, b, cutoff=MAX_PATH_PARTS)
-    if a not in dist:
+    distance to ``b``); True when the count or step limit cut the list."""
+    kind, natures, bits, accept = stage
+    sub = {u: [(v, k, bits.get(k.nature, 0)) for v, k in links if k.nature in natures]
+           for u, links in adj.items()}
+    masks = sorted({m for m in range(32) if m & ~sum(set(bits.values())) == 0})
+    dist = _distances(sub, b, masks, accept)
+    if (a, 0) not in dist:
         return [], False
     found: list[Path] = []
     steps = 0
-    for length in range(dist[a], MAX_PATH_PARTS + 1):
-        stack: list[tuple[str, tuple[Link, ...], frozenset[str], frozenset[str]]] = [
-            (a, (), frozenset((a,)), frozenset())
-        ]
-        while stack:
-            net, links, visited, used = stack.pop()
-            steps += 1
-            if steps > MAX_SEARCH_STEPS:
-                return found, True
-            depth = len(links)
-            for nxt, link in reversed(sub.get(net, ())):
-                if link.part in used:
-                    continue
-                if nxt == b:
-                    if depth + 1 == length:
-                        path = _make_path(links + (link,), a)
-                        if path.kind == kind:
-                            found.append(path)
-                            if len(found) >= MAX_PATHS:
-                                return found, True
-                    continue
-                if nxt in visited or depth + 1 + dist.get(nxt, MAX_PATH_PARTS + 1) > length:
-                    continue
-                stack.append((nxt, links + (link,), visited | {nxt}, used | {link.part}))
+    far = MAX_PATH_PARTS + 1
+    links: list[Link] = []
+    visited = {a}
+    used: set[str] = set()
+
+    def walk(net: str, mask: int, length: int) -> None:
+        nonlocal steps
+        steps += 1
+        if steps > MAX_SEARCH_STEPS:
+            raise _Cut
+        depth = len(links)
+        for nxt, link, bit in sub.get(net, ()):
+            if link.part in used:
+                continue
+            m2 = mask | bit
+            if nxt == b:
+                if depth + 1 == length and accept(m2):
+                    path = _make_path((*links, link), a)
+                    if path.kind == kind:
+                        found.append(path)
+                        if len(found) >= MAX_PATHS:
+                            raise _Cut
+                continue
+            if nxt in visited or depth + 1 + dist.get((nxt, m2), far) > length:
+                continue
+            links.append(link)
+            visited.add(nxt)
+            used.add(link.part)
+            walk(nxt, m2, length)
+            links.pop()
+            visited.discard(nxt)
+            used.discard(link.part)
+
+    try:
+        for length in range(dist[(a, 0)], MAX_PATH_PARTS + 1):
+            walk(a, 0, length)
+    except _Cut:
+        return found, True
     return found, False
 
 
-def _search(board: Board, a: str, b: str, skip: frozenset[str]) -> tuple[list[Path], tuple[str, ...]]:
-    adj = _adjacency(board, skip)
+def _search(adj: _Adjacency, a: str, b: str) -> tuple[list[Path], tuple[str, ...]]:
     paths: list[Path] = []
     cut: list[str] = []
-    for kind, natures in _STAGES:
-        found, was_cut = _search_kind(adj, a, b, kind, natures)
+    for stage in _STAGES:
+        found, was_cut = _search_kind(adj, a, b, stage)
         paths.extend(found)
         if was_cut:
-            cut.append(kind)
+            cut.append(stage[0])
     return _ordered(paths), tuple(cut)
 
 
@@ -166,7 +210,12 @@ def between(board: Board, net_a: str, net_b: str, without: Iterable[str] = (),
     """
     a, b = _check_net(board, net_a), _check_net(board, net_b)
     skip = frozenset(n.upper() for n in without)
-    paths, cut = _search(board, a, b, skip) if a != b else ([], ())
+    return _between(board, a, b, skip, pins, _adjacency(board, skip))
+
+
+def _between(board: Board, a: str, b: str, skip: frozenset[str], pins: tuple[str, ...],
+             adj: _Adjacency) -> Between:
+    paths, cut = _search(adj, a, b) if a != b else ([], ())
     rest = Board(board.name, tuple(p for p in board.parts if p.name not in skip))
     tied = a == b or any({a, b} <= group for group in tied_nets(rest))
     return Between(
@@ -185,6 +234,8 @@ def surroundings(board: Board, part: str) -> Surroundings:
         raise InputError(f"no part {part!r} on this board{_did_you_mean(part.upper(), names)}", board.path)
     p = board.part(part)
     roles = pin_roles(p)
+    skip = frozenset((p.name,))
+    adj = _adjacency(board, skip)  # shared by every pin pair
     pairs = []
     seen: set[frozenset[str]] = set()
     for i, j in combinations(range(len(p.pins)), 2):
@@ -192,6 +243,6 @@ def surroundings(board: Board, part: str) -> Surroundings:
         if p.pins[i] == p.pins[j] or key in seen:
             continue
         seen.add(key)
-        pairs.append(between(board, p.pins[i], p.pins[j], (p.name,), (roles[i], roles[j])))
+        pairs.append(_between(board, p.pins[i], p.pins[j], skip, (roles[i], roles[j]), adj))
     groups = tuple(g for g in tied_nets(board) if g & set(p.pins))
     return Surroundings(p.name, p.kind, p.pins, tuple(pairs), groups)
