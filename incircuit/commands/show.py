@@ -184,6 +184,9 @@ def _tied_lines(board: Board, groups: Iterable[frozenset[str]]) -> list[str]:
 
 def _part_lines(board: Board, part: Part, s: Surroundings) -> list[str]:
     detail = [format_value(part.value, _UNITS[part.kind])] if part.kind in _UNITS and part.value is not None else []
+    if part.kind == "K":
+        coupled = " and ".join(str(n) for n in part.params.get("inductors") or ())  # type: ignore[union-attr]
+        detail.append(f"k={part.value:g} between {coupled}" if part.value is not None else coupled)
     if part.model:
         detail.append(f"model {part.model}")
     tol = part.tolerance
@@ -191,12 +194,14 @@ def _part_lines(board: Board, part: Part, s: Surroundings) -> list[str]:
         band = (f"{tol.minus * 100:g} %" if tol.minus == tol.plus
                 else f"-{tol.minus * 100:g} %/+{tol.plus * 100:g} %")
         detail.append(f"tol {band}" + (" (default)" if tol.origin == "default" else ""))
-    pins = ", ".join(f"{role}={net}" for role, net in zip(pin_roles(part), part.pins))
+    pins = ", ".join(f"{role}={net}" for role, net in zip(pin_roles(part), part.pins)) or "none"
     where = f"   [{part.location}]" if part.location else ""
     lines = [f"{part.name}: {KIND_WORDS.get(part.kind, part.kind)}"
              + (f" ({', '.join(detail)})" if detail else ""),
              f"  pins: {pins}{where}", f"  board: {board.name}"]
     lines.extend(_tied_lines(board, s.tied))
+    if not s.pairs:
+        lines.append("  no pair of pins on different nets: nothing to look between")
     for pair in s.pairs:
         lines.extend(_pair_lines(pair, with_pins=len(s.pairs) > 1))
     return lines
