@@ -13,7 +13,12 @@ of the samples whose reading kind is the most common one, with that kind's
 share of the samples (``kind_fraction``). Sampling is seeded: the same
 inputs give the same band.
 
-Cost: one identification run per sample. ``DIAGNOSE_SAMPLES`` (500) is the
+Cost: one identification run per sample, spread over the CPU cores
+(:mod:`.workers`; the analytic engine only). Where the probed piece of the
+board holds junctions a run is slow (a tenth of a second and more); there
+the samples go through a checked log-linear model instead
+(:mod:`.surrogate`: one run per varied part plus eight check runs), and
+the band says so. ``DIAGNOSE_SAMPLES`` (500) is the
 default; surveys pass ``SURVEY_SAMPLES`` (100), whose 0.5/99.5 % tails rest
 on about half a sample each and are therefore rougher; :meth:`Band.describe`
 says how many samples a band rests on.
@@ -34,8 +39,13 @@ from typing import Callable, Iterable, Mapping, Sequence
 
 import numpy as np
 
+from .errors import EngineError
 from .model import Board, Part, Reading, Tolerance
+from .predict import identify
+from .tester.profile import load_profile
+from .surrogate import linear_readings, needs_surrogate
 from .units import format_value
+from .workers import default_workers, read_all
 
 __all__ = [
     "Band",
@@ -45,6 +55,8 @@ __all__ = [
     "monte_carlo",
     "sample_factors",
     "varied_parts",
+    "piece_parts",
+    "FALLBACK_SAMPLES",
     "DIAGNOSE_SAMPLES",
     "SURVEY_SAMPLES",
     "QUANTILES",
@@ -60,6 +72,8 @@ SURVEY_SAMPLES = 100
 QUANTILES = (0.005, 0.995)
 #: Seed used when none is given.
 DEFAULT_SEED = 1
+#: Samples of the full Monte Carlo run when the linear model fails its check.
+FALLBACK_SAMPLES = SURVEY_SAMPLES
 
 #: Reader: the reading a tester gives on a board (an identification run).
 Reader = Callable[[Board], Reading]
@@ -106,6 +120,17 @@ class Band:
     kinds: Mapping[str, KindStats] = field(default_factory=dict)
     #: Parts whose tolerance was sampled.
     varied: tuple[str, ...] = ()
+    #: "full" (an identification run per sample) or "linear" (the checked
+    #: model of :mod:`.surrogate`).
+    method: str = "full"
+    #: Identification runs made.
+    runs: int = 0
+    #: Largest log error of the linear model against its check runs.
+    check_error: float | None = None
+    #: d ln(reading) / d ln(value) per varied part (linear method only).
+    slopes: Mapping[str, float] = field(default_factory=dict)
+    #: Why the band is not what was asked for, if it is not.
+    note: str = ""
 
     @property
     def log_sigma(self) -> float | None:
@@ -129,8 +154,13 @@ class Band:
         """One line, e.g. ``"capacitor 4.3 uF .. 5.2 uF (100 % of 500 samples, 0.5-99.5 %)"``."""
         lo, hi = self.quantiles
         where = f"{self.kind_fraction * 100:.0f} % of {self.samples} samples"
+        if self.method == "linear":
+            where += (f" of a linear model checked by full runs to {(self.check_error or 0) * 100:.1f} %"
+                      f", {self.runs} runs")
         if self.samples < DIAGNOSE_SAMPLES:
             where += f"; fewer than the full {DIAGNOSE_SAMPLES}, tails are rough"
+        if self.note:
+            where += f"; {self.note}"
         if self.low is None:
             return f"{self.kind} ({where})"
         return (f"{self.kind} {format_value(self.low, self.unit)} .. {format_value(self.high, self.unit)} "
@@ -150,6 +180,10 @@ class Band:
             "seed": self.seed,
             "quantiles": list(self.quantiles),
             "log_sigma": self.log_sigma,
+            "method": self.method,
+            "runs": self.runs,
+            "check_error": self.check_error,
+            "note": self.note,
         }
 
 
@@ -197,14 +231,21 @@ def _component_nets(board: Board, nets: Iterable[str]) -> set[str]:
     return {n for n in parent if find(n) in roots} | set(nets)
 
 
+def piece_parts(board: Board, probes: Sequence[str]) -> tuple[Part, ...]:
+    """The parts that share a connected piece of the board with the probed nets."""
+    nets = _component_nets(board, [n.upper() for n in probes])
+    inductors = {n for p in board.parts if p.kind == "K" and set(p.pins) & nets
+                 for n in p.params.get("inductors", ())}  # type: ignore[union-attr]
+    return tuple(p for p in board.parts if set(p.pins) & nets or p.name in inductors)
+
+
 def varied_parts(board: Board, probes: Sequence[str]) -> tuple[Part, ...]:
     """The R, C, L parts with a value and a tolerance that share a connected
     piece of the board with the probed nets: only they move the reading."""
-    nets = _component_nets(board, [n.upper() for n in probes])
     return tuple(
-        p for p in board.parts
+        p for p in piece_parts(board, probes)
         if p.kind in ("R", "C", "L") and p.value is not None and p.tolerance is not None
-        and (p.tolerance.minus > 0 or p.tolerance.plus > 0) and set(p.pins) & nets
+        and (p.tolerance.minus > 0 or p.tolerance.plus > 0)
     )
 
 
@@ -272,7 +313,8 @@ def band_from_readings(readings: Sequence[Reading], probes: Sequence[str] = (),
 def healthy_band(board: Board, probes: Sequence[str], profile=None, engine: str = "analytic",
                  samples: int = DIAGNOSE_SAMPLES, seed: int = DEFAULT_SEED,
                  quantiles: tuple[float, float] = QUANTILES, reader: Reader | None = None,
-                 accuracy: Callable[[Reading], float] | None = None) -> Band:
+                 accuracy: Callable[[Reading], float] | None = None,
+                 workers: int | None = None, method: str = "auto") -> Band:
     """Monte Carlo band of healthy readings on ``probes``.
 
     Parameters
@@ -295,14 +337,18 @@ def healthy_band(board: Board, probes: Sequence[str], profile=None, engine: str 
     accuracy
         The instrument's absolute accuracy of a reading, instead of
         ``profile.accuracy``.
+    workers
+        Processes for the runs (None: :func:`default_workers`).
+    method
+        "full": one run per sample; "linear": the checked model of
+        :mod:`.surrogate` (full runs of :data:`FALLBACK_SAMPLES` samples
+        when its check fails); "auto": linear where the probed piece holds
+        a junction (runs are slow there), else full.
     """
     if samples < 2:
         raise ValueError("a band needs at least two samples")
     probes = tuple(n.upper() for n in probes)
     if reader is None:
-        from .predict import identify
-        from .tester.profile import load_profile
-
         profile = profile if profile is not None else load_profile()
 
         def reader(b: Board) -> Reading:
@@ -312,9 +358,45 @@ def healthy_band(board: Board, probes: Sequence[str], profile=None, engine: str 
     rng = np.random.default_rng(seed)
     nominal = np.array([float(p.value) for p in parts])  # type: ignore[arg-type]
     values = nominal * sample_factors([p.tolerance for p in parts], samples, rng)
-    readings = [reader(b) for b in _boards(board, parts, values)]
+    if workers is None:
+        workers = default_workers(engine)
     accuracy = accuracy or getattr(profile, "accuracy", None)
-    return band_from_readings(readings, probes, accuracy, seed, quantiles, [p.name for p in parts])
+    read = _tolerant(reader)
+    names = [p.name for p in parts]
+    if method == "auto":
+        method = "linear" if needs_surrogate(piece_parts(board, probes)) else "full"
+    if method == "linear":
+        result = linear_readings(read, board, parts, values / nominal, workers, quantiles)
+        if result is not None:
+            band = band_from_readings(result.readings, probes, accuracy, seed, quantiles, names)
+            return replace(band, method="linear", runs=result.runs, check_error=result.check_error,
+                           slopes=result.slopes)
+        values = values[:FALLBACK_SAMPLES]
+        note = "the linear model failed its check, so full runs of fewer samples"
+    else:
+        note = ""
+    found = read_all(read, list(_boards(board, parts, values)), workers)
+    readings = [r for r in found if r is not None]
+    failed = len(found) - len(readings)
+    if failed * 2 > len(found):
+        raise EngineError(f"the simulation failed for {failed} of {len(found)} sampled boards",
+                          "try the other engine")
+    if failed:
+        note = "; ".join(filter(None, (note, f"{failed} sampled boards failed to simulate and are left out")))
+    band = band_from_readings(readings, probes, accuracy, seed, quantiles, names)
+    return replace(band, method="full", runs=len(found), note=note)
+
+
+def _tolerant(reader: Reader) -> Callable[[Board], Reading | None]:
+    """The reader, giving None for a sampled board whose simulation fails."""
+
+    def read(board: Board) -> Reading | None:
+        try:
+            return reader(board)
+        except EngineError:
+            return None
+
+    return read
 
 
 def relative_width(band: Band) -> float:

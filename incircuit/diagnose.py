@@ -45,15 +45,18 @@ from .hypotheses import Hypothesis, fit, hypotheses_for
 from .likelihood import MODEL_SIGMA, Prediction, combine_sigma, log_likelihood
 from .model import Board, Reading
 from .nextstep import NextStep, next_step
+from .predict import identify
 from .readings import Observation
+from .tester.profile import load_profile
 from .units import format_value
+from .workers import default_workers, map_all
 
 __all__ = [
     "Observation",
     "Scored",
     "Diagnosis",
     "diagnose",
-    "tester_reader",
+    "instrument_reader",
     "DECISIONS",
     "MARGIN",
     "Z_EXPLAINED",
@@ -72,7 +75,10 @@ MARGIN = 4.0
 Z_EXPLAINED = 4.0
 
 #: Most neighbours given fault hypotheses, nearest (shortest path) first.
-MAX_NEIGHBOURS = 24
+MAX_NEIGHBOURS = 12
+
+#: Fewest hypotheses per worker process that make forking worth it.
+HYPOTHESES_PER_WORKER = 4
 
 #: (board, probe nets) -> the reading the tester would show.
 Reader = Callable[[Board, tuple[str, ...]], Reading]
@@ -153,9 +159,8 @@ class Diagnosis:
         }
 
 
-def tester_reader(profile=None, engine: str = "analytic") -> Reader:
+def instrument_reader(profile=None, engine: str = "analytic") -> Reader:
     """The three-probe tester's reading, by an identification run."""
-    from .predict import identify
 
     def read(board: Board, probes: tuple[str, ...]) -> Reading:
         return identify(board, probes, profile=profile, engine=engine).reading
@@ -258,10 +263,8 @@ def diagnose(board: Board, part: str, observations: Sequence[Observation], profi
         raise InputError(f"no part {part!r} on board {board.name}", board.path)
     part = board.part(part).name
     if reader is None:
-        from .tester.profile import load_profile
-
         profile = profile if profile is not None else load_profile()
-        reader = tester_reader(profile, engine)
+        reader = instrument_reader(profile, engine)
     read = _safe(reader)
     accuracy = getattr(profile, "accuracy", None)
     notes: list[str] = []
@@ -288,26 +291,34 @@ def diagnose(board: Board, part: str, observations: Sequence[Observation], profi
 
     with_esr = any(o.reading.extra.get("esr") for o in observations)
     suspects = _suspects(board, part, observations)
-    raw: list[tuple[Hypothesis, float, tuple[Reading | None, ...], float]] = []
-    for h in hypotheses_for(board, suspects, with_esr):
+
+    def evaluate(h: Hypothesis) -> tuple:
+        """(hypothesis, log score, predicted rows, worst z, note) of one hypothesis."""
         try:
             if h.part is None:
                 preds_h = [_healthy_prediction(b, o.reading) for o, b in zip(observations, obs_bands)]
                 ll = sum(log_likelihood(o.reading, p) for o, p in zip(observations, preds_h))
                 worst = max(_z(o.reading, p) for o, p in zip(observations, preds_h))
-                medians = tuple(Reading(b.kind, b.median) if b.median else Reading(b.kind)
-                                for b in obs_bands)
-                raw.append((h, math.log(h.prior) + ll, medians, worst))
-            elif h.fitted:
-                f = fit(lambda u, h=h: score(h, math.exp(u))[:2], h.fault)
+                medians = [Reading(b.kind, b.median) if b.median else Reading(b.kind) for b in obs_bands]
+                return h, math.log(h.prior) + ll, _rows(medians), worst, None
+            if h.fitted:
+                f = fit(lambda u: score(h, math.exp(u))[:2], h.fault, targets)
                 h = h.with_amount(f.amount)
                 _, _, preds, worst = score(h)
-                raw.append((h, math.log(h.prior) + f.log_marginal, tuple(preds), worst))
-            else:
-                ll, _, preds, worst = score(h)
-                raw.append((h, math.log(h.prior) + ll, tuple(preds), worst))
+                return h, math.log(h.prior) + f.log_marginal, _rows(preds), worst, None
+            ll, _, preds, worst = score(h)
+            return h, math.log(h.prior) + ll, _rows(preds), worst, None
         except EngineError as error:
-            notes.append(f"{h.label()}: not simulated ({error})")
+            return h, None, (), math.inf, f"{h.label()}: not simulated ({error})"
+
+    targets = [math.log(o.reading.value) if o.reading.value else None for o in observations]
+    hyps = hypotheses_for(board, suspects, with_esr)
+    results = map_all(evaluate, hyps, default_workers(engine), min_per_worker=HYPOTHESES_PER_WORKER)
+    notes.extend(r[4] for r in results if r[4])
+    raw = [(h, ls, tuple(Reading(*row) for row in rows), worst)
+           for h, ls, rows, worst, _ in results if ls is not None]
+    if not raw:
+        raise EngineError(f"no hypothesis about {part} could be simulated", "try the other engine")
     top = max(r[1] for r in raw)
     weights = [math.exp(r[1] - top) for r in raw]
     total = sum(weights)
@@ -327,6 +338,11 @@ def diagnose(board: Board, part: str, observations: Sequence[Observation], profi
                      accuracy)
     return Diagnosis(board.name, part, tuple(observations), tuple(obs_bands), tuple(ranked),
                      tuple(group_list), decision, reason, step, tuple(notes))
+
+
+def _rows(readings: Sequence[Reading]) -> tuple[tuple, ...]:
+    """Readings as plain tuples (they cross process boundaries)."""
+    return tuple((r.kind, r.value, r.unit, dict(r.extra)) for r in readings)
 
 
 def _inside(pred: Reading | None, band: Band) -> bool:

@@ -5,8 +5,11 @@ of the diagnosed part or of a neighbour on its paths. ``open`` and
 ``short`` have no free amount; ``drift`` (value times a factor),
 ``leakage`` (a parallel resistance) and ``esr`` (a capacitor's series
 resistance) are fitted to the readings by bounded minimisation of the
-negative log-likelihood over the log of the amount (a coarse grid, then
-Brent's method within the best grid cell).
+negative log-likelihood over the log of the amount: a coarse grid of
+:data:`GRID_POINTS`, then Brent's method within the best grid cell that
+can explain the readings (each reading between the cell's two predictions
+or within :data:`Z_NEAR` sigma of one); a hypothesis with no such cell is
+scored from the grid alone.
 
 A fitted hypothesis is scored by its marginal likelihood, with a
 log-uniform prior over :data:`FIT_RANGES`: ``L(amount*) * sqrt(2 pi) *
@@ -49,6 +52,8 @@ __all__ = [
     "FIT_RANGES",
     "HEALTHY_WEIGHT",
     "GRID_POINTS",
+    "XATOL",
+    "Z_NEAR",
 ]
 
 #: Fitted fault -> (lowest, highest) amount: a factor for drift, ohms for
@@ -60,7 +65,14 @@ FIT_RANGES = {"drift": (0.01, 100.0), "leakage": (10.0, 10e6), "esr": (0.01, 100
 HEALTHY_WEIGHT = 2.0
 
 #: Points of the coarse grid over the log of a fitted amount.
-GRID_POINTS = 13
+GRID_POINTS = 7
+
+#: A grid cell is refined only if each reading lies between its two
+#: predictions or within this many standard deviations of one of them.
+Z_NEAR = 4.0
+
+#: Precision of the fitted log-amount (0.5 %: finer than a reading can tell).
+XATOL = 0.005
 
 _UNITS = {"R": "ohm", "C": "F", "L": "H"}
 
@@ -155,6 +167,8 @@ class Fit:
     amount: float
     log_peak: float
     log_marginal: float
+    #: False when the coarse grid showed no cell could explain the readings.
+    refined: bool = True
 
 
 #: Objective: log-amount -> (total log-likelihood, per-reading (ln value,
@@ -163,8 +177,41 @@ class Fit:
 Objective = Callable[[float], tuple[float, list[tuple[float, float] | None]]]
 
 
-def fit(objective: Objective, fault: str, step: float = 0.05) -> Fit:
-    """Maximise ``objective`` over ``ln(amount)`` within ``FIT_RANGES[fault]``."""
+def _distance(info: list, targets: Sequence[float | None] | None) -> float:
+    """Sum of squared z of the predictions from the readings (inf: no value)."""
+    if not targets:
+        return 0.0
+    total = 0.0
+    for i, t in enumerate(targets):
+        if t is not None:
+            if not info or info[i] is None:
+                return math.inf
+            total += ((info[i][0] - t) / info[i][1]) ** 2
+    return total
+
+
+def _promising(a: list, b: list, targets: Sequence[float | None]) -> bool:
+    """Whether the cell between two grid points can hold the best fit: every
+    reading lies between the cell's two predictions or within Z_NEAR of one."""
+    for i, t in enumerate(targets):
+        if t is None:
+            continue
+        ends = [(e[i][0] - t) / e[i][1] for e in (a, b) if e and e[i] is not None]
+        if not ends:
+            return False
+        if not (min(ends) <= 0 <= max(ends) or min(abs(z) for z in ends) < Z_NEAR):
+            return False
+    return True
+
+
+def fit(objective: Objective, fault: str, targets: Sequence[float | None] | None = None,
+        step: float = 0.05) -> Fit:
+    """Maximise ``objective`` over ``ln(amount)`` within ``FIT_RANGES[fault]``.
+
+    ``targets`` (the log of each reading's value, None for a reading without
+    one) lets the coarse grid rule out cells that cannot explain the
+    readings; only a promising cell is refined (all are, without targets).
+    """
     lo, hi = (math.log(x) for x in FIT_RANGES[fault])
     width = hi - lo
     grid = np.linspace(lo, hi, GRID_POINTS)
@@ -176,18 +223,29 @@ def fit(objective: Objective, fault: str, step: float = 0.05) -> Fit:
             cache[key] = objective(float(u))
         return cache[key]
 
-    values = np.array([evaluate(u)[0] for u in grid])
-    best = int(np.argmax(values))
-    a, b = grid[max(best - 1, 0)], grid[min(best + 1, len(grid) - 1)]
-    result = minimize_scalar(lambda u: -evaluate(u)[0], bounds=(a, b), method="bounded",
-                             options={"xatol": 1e-3})
-    u_best = float(result.x) if -result.fun > values[best] else float(grid[best])
-    log_peak = evaluate(u_best)[0]
-
+    evals = [evaluate(u) for u in grid]
+    values = np.array([e[0] for e in evals])
+    # the best grid point; among equals (all on the flat floor far from the
+    # readings) the one whose predictions come nearest
+    best = max(range(len(grid)), key=lambda k: (round(float(values[k]), 9), -_distance(evals[k][1], targets)))
     # grid average of the likelihood: the marginal when the readings do not
     # pin the amount down (trapezoid rule on a uniform prior)
     shifted = np.exp(values - values.max())
     log_grid = float(values.max() + math.log(np.trapezoid(shifted, grid) / width))
+
+    if targets is None:
+        cells = [(max(best - 1, 0), min(best + 1, len(grid) - 1))]
+    else:
+        cells = [(k, k + 1) for k in range(len(grid) - 1)
+                 if any(t is not None for t in targets) and _promising(evals[k][1], evals[k + 1][1], targets)]
+        cells.sort(key=lambda c: -max(values[c[0]], values[c[1]]))
+    if not cells:
+        return Fit(math.exp(grid[best]), float(values[best]), log_grid, refined=False)
+    a, b = grid[cells[0][0]], grid[cells[0][1]]
+    result = minimize_scalar(lambda u: -evaluate(u)[0], bounds=(a, b), method="bounded",
+                             options={"xatol": XATOL})
+    u_best = float(result.x) if -result.fun > values[best] else float(grid[best])
+    log_peak = evaluate(u_best)[0]
 
     # Laplace: spread of ln(amount) allowed by the readings, from the
     # sensitivity of each reading's log-value (Gauss-Newton curvature)

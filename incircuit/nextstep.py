@@ -1,9 +1,11 @@
 """The next measurement: the one that best tells two explanations apart.
 
 Candidates, cheapest first: clip the tester onto a suspected neighbour;
-measure the part with a bench instrument (a low-voltage multimeter range
-keeps junctions off, an LCR meter sees a capacitance beside a resistance);
-lift one leg of the part (or of the suspected neighbour) and measure again.
+repeat the judge's bench advice (:func:`incircuit.judge.advice.advise`: a
+low-voltage multimeter range keeps junctions off, an LCR meter sees a
+capacitance beside a resistance, a guard net takes a path out); follow
+the judge's lift plan (:func:`incircuit.judge.lift.lift_candidates`: one
+leg of the part, or of a neighbour on its paths) and measure again.
 
 For each candidate the two leading hypotheses each predict a reading. The
 separation is ``|ln v1 - ln v2| / sigma``, with ``sigma`` the log-spread of
@@ -23,9 +25,10 @@ from dataclasses import dataclass, replace
 from typing import Callable, Sequence
 
 from .bands import healthy_band
-from .bench import bench_profiles, impedance, lcr_reading, ohms
-from .bench.measure import BenchReading
+from .bench import BenchReading, bench_profiles, diode_drop, impedance, lcr_reading, ohms
 from .errors import EngineError
+from .judge.advice import Advice, advise
+from .judge.lift import LiftAction, lift_candidates
 from .likelihood import MODEL_SIGMA, combine_sigma
 from .model import Board, Reading
 from .units import format_value
@@ -45,8 +48,6 @@ Reader = Callable[[Board, tuple[str, ...]], Reading]
 _COST = {"probe": 0, "instrument": 1, "lift": 2}
 _BENCH_KINDS = {"R": "resistor", "rs": "resistor", "rp": "resistor", "cs": "capacitor",
                 "cp": "capacitor", "ls": "inductor", "lp": "inductor", "Vf": "diode"}
-#: LCR quantity shown for each part kind.
-_LCR_QUANTITY = {"C": "cp", "L": "ls"}
 
 
 @dataclass(frozen=True)
@@ -130,43 +131,60 @@ def _bench_accuracy(r: Reading) -> float:
     return float(r.extra.get("accuracy", 0.0))  # type: ignore[arg-type]
 
 
+def _bench_reader(advice: Advice, board: Board, part: str) -> Reader:
+    """Repeat the judge's advised bench measurement (same instrument,
+    quantity, frequency and guard net) on any board."""
+    prof = next(p for p in bench_profiles() if p.id == advice.instrument)
+    shown = advice.reading
+    anode, cathode = board.part(part).pins[:2]
+
+    def read(b: Board, p: tuple[str, ...]) -> Reading:
+        if shown.quantity == "R":
+            return _bench_reading(ohms(b, p[0], p[1], prof, shown.guard))
+        if shown.quantity == "Vf":
+            return _bench_reading(diode_drop(b, anode, cathode, prof))
+        eq, peaks = impedance(b, p[0], p[1], prof, float(shown.frequency or 0.0), shown.guard)
+        return _bench_reading(lcr_reading(eq, shown.quantity, prof, shown.guard, peaks))
+
+    return read
+
+
 def _instruments(board: Board, part: str, probes: tuple[str, ...]) -> list[_Candidate]:
-    if len(probes) != 2:
+    """The judge's bench advice, one candidate per advised setting."""
+    if len(probes) < 2:
         return []
-    kind = board.part(part).kind
     out: list[_Candidate] = []
-    nets = f"{probes[0]}, {probes[1]}"
-    for prof in bench_profiles():
-        if prof.kind == "multimeter" and kind in ("R", "C", "L", "D"):
-            def read(b: Board, p: tuple[str, ...], prof=prof) -> Reading:
-                return _bench_reading(ohms(b, p[0], p[1], prof))
-            out.append(_Candidate("instrument", f"measure {part} ({nets}) with a {prof.name}", probes,
-                                  lambda b: b, read, instrument=prof.id, accuracy=_bench_accuracy))
-        elif prof.kind == "lcr" and kind in _LCR_QUANTITY:
-            quantity = _LCR_QUANTITY[kind]
-            for f in prof.frequencies:
-                def read(b: Board, p: tuple[str, ...], prof=prof, f=f, q=quantity) -> Reading:
-                    eq, peaks = impedance(b, p[0], p[1], prof, f)
-                    return _bench_reading(lcr_reading(eq, q, prof, peaks=peaks))
-                out.append(_Candidate(
-                    "instrument", f"measure {part} ({nets}) with an {prof.name} at "
-                    f"{format_value(f, 'Hz')} ({quantity[0].upper()}{quantity[1]})", probes,
-                    lambda b: b, read, instrument=prof.id, accuracy=_bench_accuracy))
+    for advice in advise(board, part, probes):
+        shown = advice.reading
+        guard = f", guard on net {shown.guard}" if shown.guard else ""
+        out.append(_Candidate(
+            "instrument", f"measure {part} with the {advice.name} ({shown.setting}{guard})",
+            probes[:2], lambda b: b, _bench_reader(advice, board, part), instrument=advice.instrument,
+            accuracy=_bench_accuracy))
     return out
 
 
-def _lifts(board: Board, name: str, measured: str, probes_of: Callable[[Board], tuple[str, ...]]
-           ) -> list[_Candidate]:
-    part = board.part(name)
+def _lifts(board: Board, part: str, probes: tuple[str, ...], suspects: Sequence[str]) -> list[_Candidate]:
+    """The judge's lift plan (own legs first, then neighbours' legs on the
+    paths), plus a leg of each suspect the plan leaves out."""
+    plan = lift_candidates(board, part, probes)
+    covered = {a.part for a in plan}
+    for name in suspects:
+        if name not in covered and name != part:
+            pins = board.part(name).pins
+            on_probe = [i for i, n in enumerate(pins, 1) if n in probes] or [1]
+            plan.append(LiftAction(name, on_probe[0], pins[on_probe[0] - 1], False))
     out = []
-    for pin, net in enumerate(part.pins, start=1):
-        if len(set(part.pins)) < len(part.pins):
-            break
-        lifted = lift_leg(board, name, pin)
-        what = "measure it again" if name == measured else f"measure {measured} again"
-        out.append(_Candidate("lift", f"lift pin {pin} of {name} (net {net}) and {what}",
-                              probes_of(lifted), lambda b, n=name, k=pin: lift_leg(b, n, k),
-                              lift=(name, pin)))
+    for action in plan:
+        if action.own:
+            lifted = f"{action.part}.PIN{action.pin}~LIFTED"
+            nets = tuple(lifted if n == action.net else n for n in probes)
+            what = "measure it again"
+        else:
+            nets, what = probes, f"measure {part} again"
+        out.append(_Candidate(
+            "lift", f"lift pin {action.pin} of {action.part} (off net {action.net}) and {what}", nets,
+            lambda b, n=action.part, k=action.pin: lift_leg(b, n, k), lift=(action.part, action.pin)))
     return out
 
 
@@ -178,12 +196,7 @@ def _candidates(board: Board, part: str, probes: tuple[str, ...], suspects: Sequ
             out.append(_Candidate("probe", f"clip the tester onto {name} ({', '.join(pins[:3])})",
                                   tuple(pins[:3]), lambda b: b))
     out.extend(_instruments(board, part, probes))
-    own = board.part(part)
-    if set(probes) == set(own.pins[:3]):
-        out.extend(_lifts(board, part, part, lambda b: tuple(b.part(part).pins[:3])))
-    for name in suspects:
-        if name != part:
-            out.extend(_lifts(board, name, part, lambda b: probes))
+    out.extend(_lifts(board, part, probes, suspects))
     return out
 
 
@@ -213,19 +226,34 @@ def next_step(board: Board, part: str, probes: tuple[str, ...], leaders: Sequenc
     hyps = [s.hypothesis for s in leaders]
     labels = [h.label() for h in hyps]
     suspects = [h.part for h in hyps if h.part]
-    best: tuple[tuple[float, int], _Candidate, list[Reading], float] | None = None
+    # predictions first; the optimistic separation (without the healthy
+    # spread, which can only widen sigma) orders the costlier band runs
+    found = []
     for cand in _candidates(board, part, probes, suspects):
         reader = cand.reader or read
+        acc = cand.accuracy or accuracy
         try:
             preds = [reader(cand.change(h.apply(board)), cand.probes) for h in hyps]
+        except (EngineError, KeyError, ValueError):
+            continue
+        sigma0 = combine_sigma(MODEL_SIGMA, *(_relative(p, acc) for p in preds))
+        found.append(((min(separation(preds[0], preds[1], sigma0), SEPARATION_ENOUGH),
+                       -_COST[cand.action]), cand, preds))
+    found.sort(key=lambda f: f[0], reverse=True)
+    best: tuple[tuple[float, int], _Candidate, list[Reading], float] | None = None
+    for optimistic, cand, preds in found:
+        if best is not None and optimistic <= best[0]:
+            break
+        reader = cand.reader or read
+        acc = cand.accuracy or accuracy
+        try:
             band = healthy_band(cand.change(board), cand.probes, profile, engine, NEXT_STEP_SAMPLES,
-                                seed, reader=lambda b, p=cand.probes, r=reader: r(b, p),
-                                accuracy=cand.accuracy or accuracy)
+                                seed, reader=lambda b, p=cand.probes, r=reader: r(b, p), accuracy=acc)
         except (EngineError, KeyError, ValueError):
             continue
         stats = band.kinds.get(preds[0].kind) or band.kinds.get(band.kind)
         sigma = combine_sigma(stats.log_sigma if stats else None, MODEL_SIGMA,
-                              *(_relative(p, cand.accuracy or accuracy) for p in preds))
+                              *(_relative(p, acc) for p in preds))
         sep = separation(preds[0], preds[1], sigma)
         key = (min(sep, SEPARATION_ENOUGH), -_COST[cand.action])
         if best is None or key > best[0]:
