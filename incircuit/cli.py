@@ -20,6 +20,8 @@ __all__ = ["main", "COMMANDS"]
 #: Command name -> one-line help. Order is the order shown in --help.
 COMMANDS = {
     "show": "summarise a board, or list the paths around one part",
+    "predict": "predict the tester's reading on a part, alone and in circuit",
+    "diagnose": "judge a reading you got on a part: desolder it, leave it, or look elsewhere",
 }
 
 

@@ -7,11 +7,12 @@ pins) until every probe reads below ``discharge.target_volts``.
 ``conduction`` drives one probe high and the other low, first through the
 low resistor (about 7 mA) and then through the high one (about 10 uA), and
 samples the part's voltage half-way and at the end of each pulse. When the
-voltage rises during a pulse the driven probe is left floating for a
-moment (the hold): a voltage that stays is stored charge. Each direction
+voltage rises, or the current falls, during a pulse (the part is charging)
+the driven probe is left floating for a moment (the hold): a voltage that
+stays is stored charge. Each direction
 is then one of:
 
-``capacitive``  rising and holding (stored charge);
+``capacitive``  charging and holding (stored charge);
 ``linear``      conducts like a resistor: the low-resistor sample matches
                 the resistor that explains the high-resistor sample;
 ``junction``    conducts far more at the higher current than a resistor
@@ -118,8 +119,13 @@ def pulse(bench: Bench, high: int, low: int, level: str) -> Pulse:
     lsb = max(a_end.lsb, b_end.lsb)
     conducting = bench.full_count() - a_end.count >= p.conduction_detect_counts
     current = (p.supply_volts - a_end.volts) / r_drive if conducting else 0.0
+    # charging: the part's voltage rises, or the current through the known resistor falls
+    enough = p.conduction_rise_counts * lsb
     rise = v_end - v_mid
-    rising = rise >= p.conduction_rise_counts * lsb and rise >= p.conduction_rise_fraction * abs(v_end)
+    fall = a_end.volts - a_mid.volts  # = (i_mid - i_end) * Rk
+    drop_mid = p.supply_volts - a_mid.volts  # = i_mid * Rk
+    rising = (rise >= enough and rise >= p.conduction_rise_fraction * abs(v_end)) or (
+        fall >= p.conduction_rise_counts * a_end.lsb and fall >= p.conduction_rise_fraction * drop_mid)
     holding = False
     if rising:
         hold = bench.run(f"hold {high + 1} ({level} resistor)",

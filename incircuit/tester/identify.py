@@ -13,8 +13,10 @@
    * stored charge in either direction, or no conduction at all: the
      capacitance methods; below ``capacitance.min_farads`` ``nothing``;
    * linear both ways: the divider resistance (both polarities); above
-     ``resistance.max_ohms`` ``nothing``; at most ``inductance.max_ohms``
-     the current-rise step tells an ``inductor`` from a ``resistor``.
+     ``resistance.max_ohms`` ``nothing``; polarities that differ by more
+     than ``resistance.symmetry_tolerance``: a ``diode`` conducting the
+     better way; at most ``inductance.max_ohms`` the current-rise step
+     tells an ``inductor`` from a ``resistor``.
 
 Every value is in SI units; ``extra["method"]`` and ``extra["resolution"]``
 let :meth:`Profile.accuracy` state the uncertainty.
@@ -23,6 +25,7 @@ let :meth:`Profile.accuracy` state the uncertainty.
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 from ..engines.base import Session
 from ..model import Reading
@@ -120,6 +123,12 @@ def _resistor(bench: Bench, fwd: Direction, rev: Direction) -> Reading:
     if not math.isfinite(found.value) or found.value > p.resistance_max_ohms:
         ensure_discharged(bench)
         return Reading("nothing")
+    one, two = found.extra["forward_ohms"], found.extra["reverse_ohms"]
+    if abs(one - two) > p.resistance_symmetry_tolerance * max(one, two) + 2 * found.resolution:
+        # a resistor is symmetric; a path through junctions is not
+        if one <= two:
+            return _junctions(bench, replace(fwd, kind="junction"), rev)
+        return _junctions(bench, fwd, replace(rev, kind="junction"))
     if found.value <= p.inductance_max_ohms:
         coil = inductance(bench, found.value)
         if coil is not None:

@@ -173,6 +173,8 @@ def _threshold(bench: Bench, high: int, low: int, via: str, timeout: float,
     def farads(t: float) -> float:
         return fm.threshold_capacitance(t, r_drive, r_total, vs, vth, v0) - p.capacitance_zero_offset_farads
     value = farads(n * tick)
+    if not math.isfinite(value):
+        return None  # the part already sat above the threshold
     return Measured(value, abs(farads((n + 1) * tick) - value), f"threshold_{via}", {"ticks": n})
 
 

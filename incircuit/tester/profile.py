@@ -86,6 +86,7 @@ class Profile:
     resistance_settle_low_seconds: float = _k("resistance", "settle_low_seconds", hi=10.0)
     resistance_settle_high_seconds: float = _k("resistance", "settle_high_seconds", hi=10.0)
     resistance_max_ohms: float = _k("resistance", "max_ohms")
+    resistance_symmetry_tolerance: float = _k("resistance", "symmetry_tolerance", hi=10.0)
     capacitance_size_seconds: float = _k("capacitance", "size_seconds", hi=1.0)
     capacitance_high_max_farads: float = _k("capacitance", "high_max_farads", hi=1.0)
     capacitance_low_max_farads: float = _k("capacitance", "low_max_farads", hi=10.0)
