@@ -127,7 +127,7 @@ def _value(token: str, fail: _Fail) -> tuple[float, str | None, str | None, bool
     else:
         m = _NUMBER.match(token)
         if not m:
-            fail(f"cannot read the value {token!r}")
+            fail(f"{token!r} is not a number with an optional prefix and unit")
         prefix = m["prefix"]
         if prefix and prefix.lower() == "meg":
             prefix = "meg"

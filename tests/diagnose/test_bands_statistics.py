@@ -122,3 +122,49 @@ def test_factors_stay_within_asymmetric_limits():
     assert np.all(f[:, 1] == 1.0)
     # mean of a uniform on [0.8, 1.8] is 1.3; SE = 1/sqrt(12 * 10000) ~ 0.003
     assert f[:, 0].mean() == pytest.approx(1.3, abs=0.012)
+
+
+@pytest.fixture(scope="module")
+def parallel_pair_bands():
+    """Bands of the tester's reading of 10k || 4.7k (both 5 %), by full Monte
+    Carlo and by the checked linear model (a dead-end diode on net B puts a
+    junction in the probed piece, which is what selects the linear model)."""
+    t = Tolerance.symmetric(0.05)
+    board = Board("pair", (
+        Part("R1", "R", ("A", "B"), 10e3, tolerance=t),
+        Part("R2", "R", ("A", "B"), 4.7e3, tolerance=t),
+        Part("D1", "D", ("B", "C"), model="DX"),
+    ))
+    full = healthy_band(board, ("A", "B"), samples=500, seed=4, method="full")
+    linear = healthy_band(board, ("A", "B"), samples=500, seed=4)
+    return full, linear
+
+
+def test_tester_band_matches_first_order_propagation(parallel_pair_bands):
+    # ln f = ln(R1 R2 / (R1 + R2)); d ln f / d ln R1 = R2 / (R1 + R2) and
+    # vice versa (Horowitz & Hill 3rd ed. 1.2.1); sigma of ln R_i is
+    # tol / sqrt(3) for a uniform tolerance (GUM 4.3.7), combined by GUM
+    # 5.1.2. The standard error of a standard deviation from N = 500 samples
+    # of this near-uniform sum is at most about 3 %; rtol 10 % is three of
+    # those plus the tester's own quantisation (0.3 % at 3.2 kohm).
+    r1, r2 = 10e3, 4.7e3
+    s = 0.05 / math.sqrt(3)
+    sigma = s * math.hypot(r2 / (r1 + r2), r1 / (r1 + r2))
+    full, linear = parallel_pair_bands
+    assert full.method == "full" and linear.method == "linear"
+    for band in (full, linear):
+        assert band.kinds["resistor"].log_sigma_circuit == pytest.approx(sigma, rel=0.10)
+        assert band.median == pytest.approx(r1 * r2 / (r1 + r2), rel=0.01)  # tester within 1 %
+
+
+def test_linear_model_band_agrees_with_full_runs(parallel_pair_bands):
+    # Same seed, same sampled boards: the model's percentiles follow the full
+    # runs to within its checked error (at most CHECK_FLOOR = 0.5 % here).
+    full, linear = parallel_pair_bands
+    assert linear.check_error <= 0.005
+    assert linear.low == pytest.approx(full.low, rel=0.01)    # 0.5 % model + quantisation
+    assert linear.high == pytest.approx(full.high, rel=0.01)
+    assert linear.runs < 40 < full.runs
+    assert set(linear.slopes) == {"R1", "R2"}
+    # the slopes are d ln f / d ln R_i of the parallel pair (H&H 1.2.1)
+    assert linear.slopes["R1"] == pytest.approx(4.7 / 14.7, abs=0.02)  # secant over 5 %
