@@ -33,7 +33,7 @@ import scipy.linalg as sla
 from scipy.optimize import brentq
 from scipy.sparse.csgraph import connected_components
 
-__all__ = ["Split", "make_split", "Static", "Modal", "Exponential", "decompose", "first_event", "time_grid"]
+__all__ = ["Split", "cap_islands", "make_split", "Static", "Modal", "Exponential", "decompose", "first_event", "time_grid"]
 
 #: Above this condition number of the eigenvector matrix the matrix
 #: exponential replaces the modal sum.
@@ -42,21 +42,46 @@ EIG_COND_MAX = 1e8
 
 @dataclass(frozen=True)
 class Split:
-    """Dynamic/algebraic coordinates: ``x = Tr y + Tn w``, ``y = Lsel x``."""
+    """Dynamic/algebraic coordinates: ``x = Tr y + Tn w``, ``y = Lsel x``.
+
+    ``Linv`` is the inverse Cholesky factor of ``Cr`` (``Linv Cr Linv^T = I``),
+    which turns the generalized eigenproblem into a standard one.
+    """
 
     Tr: np.ndarray
     Tn: np.ndarray
     Lsel: np.ndarray
     Cr: np.ndarray
+    Linv: np.ndarray
 
 
-def make_split(C: np.ndarray, grounded: np.ndarray, anchor: np.ndarray | None = None) -> Split:
+def cap_islands(C: np.ndarray, grounded: np.ndarray) -> list[tuple[np.ndarray, bool]]:
+    """Groups of nets joined by capacitors, each with whether it floats
+    (no capacitance to the tester's ground)."""
+    cap = np.flatnonzero(np.diag(C) > 0)
+    if not len(cap):
+        return []
+    ncomp, labels = connected_components(C[np.ix_(cap, cap)] != 0, directed=False)
+    out = []
+    for c in range(ncomp):
+        members = cap[labels == c]
+        out.append((members, not grounded[members].any()))
+    return out
+
+
+def make_split(
+    C: np.ndarray,
+    grounded: np.ndarray,
+    anchor: np.ndarray | None = None,
+    islands: list[tuple[np.ndarray, bool]] | None = None,
+) -> Split:
     """Coordinates for capacitance matrix ``C`` (``grounded``: nets with capacitance to ground).
 
     The reference net of a floating island is the member with the largest
     ``anchor`` (its conductance to everything else): eliminating the
     island's common mode then subtracts small numbers from small ones
-    instead of large from large (no cancellation).
+    instead of large from large (no cancellation). ``islands`` may be
+    passed in from :func:`cap_islands` to save recomputing them.
 
     >>> C = np.array([[2.0, -1.0, 0.0], [-1.0, 1.0, 0.0], [0.0, 0.0, 0.0]])
     >>> s = make_split(C, np.array([True, False, False]))
@@ -64,34 +89,38 @@ def make_split(C: np.ndarray, grounded: np.ndarray, anchor: np.ndarray | None = 
     ((3, 2), (3, 1))
     """
     n = len(C)
-    cap = np.flatnonzero(np.diag(C) > 0)
-    Tr_cols: list[np.ndarray] = []
-    Tn_cols: list[np.ndarray] = []
-    L_rows: list[np.ndarray] = []
-    eye = np.eye(n)
-    if len(cap):
-        sub = C[np.ix_(cap, cap)] != 0
-        ncomp, labels = connected_components(sub, directed=False)
-        for c in range(ncomp):
-            members = cap[labels == c]
-            ref = None
-            if not grounded[members].any():
-                ref = members[0] if anchor is None else members[np.argmax(anchor[members])]
-            for j in members:
-                if j == ref:
-                    continue
-                Tr_cols.append(eye[j])
-                L_rows.append(eye[j] - (eye[ref] if ref is not None else 0.0))
-            if ref is not None:
-                ind = np.zeros(n)
-                ind[members] = 1.0
-                Tn_cols.append(ind)
-    for j in np.flatnonzero(np.diag(C) <= 0):
-        Tn_cols.append(eye[j])
-    Tr = np.array(Tr_cols).T.reshape(n, len(Tr_cols))
-    Tn = np.array(Tn_cols).T.reshape(n, len(Tn_cols))
-    Lsel = np.array(L_rows).reshape(len(L_rows), n)
-    return Split(Tr, Tn, Lsel, Tr.T @ C @ Tr)
+    if islands is None:
+        islands = cap_islands(C, grounded)
+    dyn: list[int] = []
+    refs: list[int] = []
+    tn_ind: list[np.ndarray] = []
+    for members, floating in islands:
+        ref = -1
+        if floating:
+            ref = int(members[0] if anchor is None else members[np.argmax(anchor[members])])
+            tn_ind.append(members)
+        for j in members:
+            if j != ref:
+                dyn.append(int(j))
+                refs.append(ref)
+    alg = np.flatnonzero(np.diag(C) <= 0)
+    nr, na = len(dyn), len(tn_ind) + len(alg)
+    Tr = np.zeros((n, nr))
+    Lsel = np.zeros((nr, n))
+    Tn = np.zeros((n, na))
+    if nr:
+        cols = np.arange(nr)
+        Tr[dyn, cols] = 1.0
+        Lsel[cols, dyn] = 1.0
+        for row, ref in enumerate(refs):
+            if ref >= 0:
+                Lsel[row, ref] = -1.0
+    for k, members in enumerate(tn_ind):
+        Tn[members, k] = 1.0
+    Tn[alg, len(tn_ind) + np.arange(len(alg))] = 1.0
+    Cr = C[np.ix_(dyn, dyn)]
+    Linv = np.linalg.inv(np.linalg.cholesky(Cr)) if nr else np.zeros((0, 0))
+    return Split(Tr, Tn, Lsel, Cr, Linv)
 
 
 class Static:
@@ -133,7 +162,11 @@ class Modal:
         S = 0.5 * (S + S.T)
         self.Xc = st.Xc
         if m == 0:
-            lam, Phi = sla.eigh(S, Cr) if nr else (np.zeros(0), np.zeros((0, 0)))
+            if nr:
+                lam, U = np.linalg.eigh(sp_.Linv @ S @ sp_.Linv.T)
+                Phi = sp_.Linv.T @ U  # Phi^T Cr Phi = I, S Phi = Cr Phi diag(lam)
+            else:
+                lam, Phi = np.zeros(0), np.zeros((0, 0))
             self.lam = -lam
             self.M = st.P @ Phi
             self.Wx = Phi.T @ Cr @ sp_.Lsel
@@ -195,10 +228,10 @@ class ModalTrajectory:
     def rates(self) -> np.ndarray:
         return self.dec.lam
 
-    def combo(self, W: np.ndarray, level: np.ndarray) -> "Combo":
-        """Scalar functions ``W x(t) - level`` (one per row of ``W``)."""
+    def combo(self, W: np.ndarray, level: np.ndarray, horizon: float = np.inf) -> "Combo":
+        """Scalar functions ``W x(t) - level`` (one per row of ``W``) for ``t <= horizon``."""
         WM = W @ self.dec.M
-        return Combo(self.dec.lam, WM * self.zeta, WM * self.gam, W @ self.const - level, self.dec.real)
+        return Combo(self.dec.lam, WM * self.zeta, WM * self.gam, W @ self.const - level, self.dec.real, horizon)
 
     def nets(self, t: np.ndarray) -> np.ndarray:
         ex, tp = _phi_t(self.dec.lam, np.asarray(t, dtype=float))
@@ -215,28 +248,46 @@ class ModalTrajectory:
 
 
 class Combo:
-    """``c + Re(sum_k p_k e^{lam_k t} + q_k t phi1(lam_k t))`` for several rows."""
+    """``c + Re(sum_k p_k e^{lam_k t} + q_k t phi1(lam_k t))`` for several rows.
 
-    def __init__(self, lam, p, q, c, real: bool):
-        self.lam, self.p, self.q, self.c, self.real = lam, p, q, c, real
+    For speed the modes that change appreciably within ``horizon`` are
+    folded into ``c' + sum_k a_k e^{lam_k t}`` (``a = p + q/lam``); the few
+    slow ones (``|lam| horizon < 1e-3``, e.g. a loop of inductors) keep the
+    ``t phi1`` form with its Taylor series.
+    """
+
+    def __init__(self, lam, p, q, c, real: bool, horizon: float = np.inf):
+        slow = np.abs(lam) * horizon < 1e-3
+        fast = ~slow
+        lf = lam[fast]
+        qf = q[:, fast] / lf
+        self.lf = lf
+        self.a = p[:, fast] + qf
+        self.c = c - qf.sum(axis=1).real
+        self.ls, self.ps, self.qs = lam[slow], p[:, slow], q[:, slow]
+        self.real = real and not np.iscomplexobj(self.a)
 
     def __call__(self, t: np.ndarray) -> np.ndarray:
-        ex, tp = _phi_t(self.lam, np.asarray(t, dtype=float))
-        out = ex @ self.p.T + tp @ self.q.T
+        t = np.asarray(t, dtype=float)
+        out = np.exp(np.multiply.outer(t, self.lf)) @ self.a.T
+        if len(self.ls):
+            u = np.multiply.outer(t, self.ls)
+            tp = t[:, None] * (1.0 + u * (0.5 + u * (1.0 / 6.0 + u / 24.0)))
+            out = out + np.exp(u) @ self.ps.T + tp @ self.qs.T
         return self.c + (out if self.real else out.real)
 
     def row(self, k: int):
-        lam, p, q, c = self.lam, self.p[k], self.q[k], self.c[k]
-        nz = lam != 0
-        lam_nz = lam[nz]
-        pk, qk = p[nz], q[nz]
-        q0 = q[~nz].sum()
-        real = self.real
+        lf, a, c = self.lf, self.a[k], float(self.c[k])
+        ls, ps, qs = self.ls, self.ps[k], self.qs[k]
+        if not len(ls):
+            if self.real:
+                return lambda t: c + float(a @ np.exp(lf * t))
+            return lambda t: c + float((a @ np.exp(lf * t)).real)
 
         def f(t: float) -> float:
-            ex = np.exp(lam_nz * t)
-            v = pk @ ex + qk @ ((ex - 1.0) / lam_nz) + q0 * t
-            return float(c + (v if real else v.real))
+            u = ls * t
+            v = a @ np.exp(lf * t) + ps @ np.exp(u) + qs @ (t * (1.0 + u * (0.5 + u * (1.0 / 6.0 + u / 24.0))))
+            return c + float(v.real)
 
         return f
 
@@ -280,7 +331,7 @@ class ExpTrajectory:
         z = self._z(t)
         return self.const + self.dec.Cz @ z, z[self.dec.nr :]
 
-    def combo(self, W: np.ndarray, level: np.ndarray) -> "ExpCombo":
+    def combo(self, W: np.ndarray, level: np.ndarray, horizon: float = np.inf) -> "ExpCombo":
         return ExpCombo(self, W, level)
 
 
@@ -301,7 +352,7 @@ def decompose(st: Static, Lm: np.ndarray) -> Modal | Exponential:
     return modal if modal.ok else Exponential(st, modal)
 
 
-def time_grid(rates: np.ndarray, t_end: float, per_decade: int = 10, max_points: int = 4000) -> np.ndarray:
+def time_grid(rates: np.ndarray, t_end: float, per_decade: int = 8, max_points: int = 4000) -> np.ndarray:
     """Times in ``[0, t_end]`` fine enough to bracket crossings of a modal sum.
 
     Log-spaced from a twentieth of the fastest time constant, plus points
@@ -311,24 +362,29 @@ def time_grid(rates: np.ndarray, t_end: float, per_decade: int = 10, max_points:
         return np.array([0.0])
     rates = np.asarray(rates)
     decay = np.abs(rates.real)
-    fast = decay.max() if len(decay) and decay.max() > 0 else 0.0
-    t_lo = max(t_end * 1e-14, 0.05 / fast if fast > 0 else t_end)
+    fast = decay.max() if len(decay) else 0.0
+    t_lo = max(t_end * 1e-14, 0.05 / fast) if fast > 0 else t_end
     if t_lo >= t_end:
-        grid = [np.linspace(0.0, t_end, 9)]
+        grid = np.linspace(0.0, t_end, 9)
     else:
-        n = int(np.ceil(per_decade * np.log10(t_end / t_lo))) + 1
-        grid = [np.array([0.0]), np.geomspace(t_lo, t_end, n)]
+        span = np.log(t_end / t_lo)
+        n = int(np.ceil(per_decade * span / np.log(10.0))) + 1
+        grid = np.empty(n + 1)
+        grid[0] = 0.0
+        grid[1:] = t_lo * np.exp(np.linspace(0.0, span, n))
+        grid[-1] = t_end
+    if not np.iscomplexobj(rates):
+        return grid
+    parts = [grid]
     budget = max_points
-    for r in rates[np.abs(rates.imag) > 0]:
-        if r.imag < 0:
-            continue
+    for r in rates[rates.imag > 0]:
         period = 2 * np.pi / r.imag
-        span = min(t_end, 10.0 / decay_or_inf(r.real))
-        k = int(min(budget, np.ceil(8 * span / period)))
+        span_t = min(t_end, 10.0 / decay_or_inf(r.real))
+        k = int(min(budget, np.ceil(8 * span_t / period)))
         if k > 2:
-            grid.append(np.linspace(0.0, span, k + 1))
+            parts.append(np.linspace(0.0, span_t, k + 1))
             budget -= k
-    return np.unique(np.concatenate(grid))
+    return np.unique(np.concatenate(parts)) if len(parts) > 1 else grid
 
 
 def decay_or_inf(re: float) -> float:
