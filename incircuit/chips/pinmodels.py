@@ -27,14 +27,20 @@ capacitance and leakage. The models, per role:
 ``switch``
     that resistor when the switch is closed, nothing when open.
 
-Several pins on the same net share one set of diodes to it. A chip with no
-supply pin has no supply-side diodes, one with no ground pin no
-ground-side parts. Every value and its source is in :data:`PIN_MODEL_VALUES`.
+Several pins on the same net share one set of diodes to it, and rails tied
+together by a near-zero-ohm part (a ferrite bead between VCC and AVCC)
+count once. A signal pin whose net reaches no other part is left out: its
+two junctions in series only parallel the chip's own supply clamp, so they
+never carry current first (a probe placed on such a free pin itself sees
+nothing of the chip). A chip with no supply pin has no supply-side diodes,
+one with no ground pin no ground-side parts. Every value and its source is
+in :data:`PIN_MODEL_VALUES`.
 
 >>> from incircuit.model import Board, Part
 >>> u = Part("U1", "X", ("A", "VCC", "GND"), model="BUF",
 ...          params={"roles": ("input", "supply", "ground")})
->>> sorted(e.name for e in expand_pin_roles(u, Board("t", (u,))))[:3]
+>>> r = Part("R1", "R", ("A", "GND"), 1e3)
+>>> sorted(e.name for e in expand_pin_roles(u, Board("t", (u, r))))[:3]
 ['U1~P1~C', 'U1~P1~DH1', 'U1~P1~DL1']
 """
 
@@ -44,6 +50,7 @@ from types import MappingProxyType
 
 from ..circuit import UNMODELLED_EXPANDERS, Element
 from ..model import Board, Model, Part
+from .uncertain import tied_nets
 
 __all__ = [
     "PIN_MODEL_VALUES",
@@ -94,17 +101,35 @@ def _two_pin(part: Part, role: str) -> tuple[Element, ...]:
     return (Element(f"{part.name}~R", "R", part.pins, ohms, part=part.name),)
 
 
-def _chip(part: Part, roles: tuple[str, ...]) -> tuple[Element, ...]:
+def _one_per_tie(nets: list[str], board: Board) -> list[str]:
+    """``nets`` without those tied to an earlier one (one diode serves a tied group)."""
+    kept: list[str] = []
+    covered: set[str] = set()
+    for net in nets:
+        if net not in covered:
+            kept.append(net)
+            covered |= tied_nets(board, (net,))
+    return kept
+
+
+def _free(net: str, part: Part, board: Board) -> bool:
+    """True when no other part touches ``net``."""
+    return all(p.name == part.name for p in board.parts_on(net))
+
+
+def _chip(part: Part, roles: tuple[str, ...], board: Board) -> tuple[Element, ...]:
     name = part.name
     supplies = list(dict.fromkeys(n for n, r in zip(part.pins, roles) if r == "supply"))
     grounds = list(dict.fromkeys(n for n, r in zip(part.pins, roles) if r == "ground"))
+    rails = set(supplies) | set(grounds)
+    supplies, grounds = _one_per_tie(supplies, board), _one_per_tie(grounds, board)
     out: list[Element] = []
     done: set[str] = set()
     for pin, (net, role) in enumerate(zip(part.pins, roles), start=1):
         if role not in SIGNAL_ROLES and role != "open-drain":
             continue
-        if net in done or net in supplies or net in grounds:
-            continue  # one set of diodes per net; a pin tied to a rail is the rail
+        if net in done or net in rails or _free(net, part, board):
+            continue  # one set of diodes per net; a pin on a rail is the rail; a free pin
         done.add(net)
         tag = f"{name}~P{pin}"
         if role != "open-drain":
@@ -135,7 +160,7 @@ def expand_pin_roles(part: Part, board: Board) -> tuple[Element, ...] | None:
     roles = tuple(str(r) for r in roles)  # type: ignore[union-attr]
     if roles[0] in ("short", "switch"):
         return _two_pin(part, roles[0])
-    return _chip(part, roles)
+    return _chip(part, roles, board)
 
 
 def register() -> None:

@@ -22,6 +22,7 @@ from dataclasses import dataclass, field
 from functools import partial
 from typing import Sequence
 
+from ..chips import uncertainty_reasons
 from ..model import Board, Part, Reading
 from ..predict import identify as _identify
 from ..units import format_value
@@ -227,7 +228,8 @@ def judge(board: Board, part: str, prediction, profile, engine: str = "analytic"
     advice = advise(board, p.name, probes, bench)
 
     run = prediction.in_circuit
-    reasons = [f"{p.name} is {verdict}: {why}", deviation_reason(p.name, iso, inc)]
+    reasons = [f"{p.name} is {verdict}: {why}", *uncertainty_reasons(board, probes),
+               deviation_reason(p.name, iso, inc)]
     reasons += path_reasons(board, p.name, probes, iso, inc)
     reasons += junction_reasons(conducting_junctions(board, run), p.name, iso, inc)
     share = share_reason(p.name, current_share(board, p.name, run))

@@ -25,9 +25,18 @@ def _chip(roles, nets, model="CHIP"):
     return Part("U1", "X", nets, model=model, params={"roles": roles, "roles_origin": "file x"})
 
 
+def _board(chip, *loaded):
+    """The chip plus a resistor on each net in ``loaded`` (so those pins are not free)."""
+    return Board("b", (chip, *(Part(f"R{i}", "R", (n, "ELSEWHERE"), 1e3) for i, n in enumerate(loaded))))
+
+
+def _chip_elements(board):
+    return [e for e in elements(board).elements if e.part == "U1"]
+
+
 def test_input_pin_has_diodes_to_each_rail_and_its_capacitance_and_leakage():
     u = _chip(("input", "supply", "supply", "ground"), ("IN", "VA", "VB", "GND"))
-    els = {e.name: e for e in elements(Board("b", (u,))).elements}
+    els = {e.name: e for e in _chip_elements(_board(u, "IN"))}
     diodes = {(e.nodes, e.model.name) for e in els.values() if e.kind == "D"}
     assert {(("IN", "VA"), "~PINDIODE"), (("IN", "VB"), "~PINDIODE"), (("GND", "IN"), "~PINDIODE")} <= diodes
     # supply clamps: ground anode -> each supply
@@ -41,22 +50,35 @@ def test_input_pin_has_diodes_to_each_rail_and_its_capacitance_and_leakage():
 
 def test_open_drain_has_only_ground_side_junctions():
     u = _chip(("open-drain", "supply", "ground"), ("OD", "VCC", "GND"))
-    els = elements(Board("b", (u,))).elements
+    els = _chip_elements(_board(u, "OD"))
     on_pin = [e for e in els if e.kind == "D" and "OD" in e.nodes]
     assert len(on_pin) == 2 and all(e.nodes == ("GND", "OD") for e in on_pin)
 
 
 def test_rails_no_connect_and_pins_on_a_rail_add_no_signal_parts():
     u = _chip(("no-connect", "supply", "ground", "input", "open"), ("NC", "VCC", "GND", "VCC", "X"))
-    els = elements(Board("b", (u,))).elements
+    els = _chip_elements(_board(u, "NC", "X"))
     assert not any("NC" in e.nodes or "X" in e.nodes for e in els)
     assert sorted(e.kind for e in els) == ["C", "D", "R"]  # the supply clamp, capacitance, leakage
 
 
 def test_two_signal_pins_on_one_net_share_one_set_of_diodes():
     u = _chip(("input", "input", "supply", "ground"), ("IN", "IN", "VCC", "GND"))
-    els = elements(Board("b", (u,))).elements
+    els = _chip_elements(_board(u, "IN"))
     assert sum(1 for e in els if e.kind == "D" and "IN" in e.nodes) == 2
+
+
+def test_a_free_pin_adds_nothing():
+    u = _chip(("input", "input", "supply", "ground"), ("IN", "FREE", "VCC", "GND"))
+    els = _chip_elements(_board(u, "IN"))
+    assert not any("FREE" in e.nodes for e in els)
+
+
+def test_rails_tied_by_a_short_part_get_one_diode():
+    u = _chip(("input", "supply", "supply", "ground"), ("IN", "VCC", "AVCC", "GND"))
+    bead = Part("FB1", "X", ("VCC", "AVCC"), model="BEAD-1", params={"roles": ("short", "short")})
+    els = _chip_elements(Board("b", (u, bead, Part("R1", "R", ("IN", "X"), 1e3))))
+    assert sorted(e.nodes for e in els if e.kind == "D") == [("GND", "IN"), ("GND", "VCC"), ("IN", "VCC")]
 
 
 def test_diode_model_is_the_documented_generic_junction():
