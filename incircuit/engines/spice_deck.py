@@ -15,11 +15,12 @@ What the deck adds to the board (see ``docs/engines.md``, "ngspice engine"):
   gmin) so that the matrix of a floating board is never singular;
 * every island of the board (nets joined by parts) that holds capacitors,
   junctions or a probe, but no probe with stray capacitance, gets a small
-  capacitance to ground on one net (a probe net if it has one): :data:`ISLAND_C` or :data:`ISLAND_FRACTION` of the
-  island's capacitors, whichever is larger. Without it the island's
-  common-mode voltage hangs on the leaks alone and a short step with a
-  large capacitor is numerically singular;
-* 0-ohm resistors and 0-henry inductors merge their two nets;
+  capacitance to ground on one net (a probe net if it has one): 1 fF or
+  1e-9 of the island's capacitors, whichever is larger. Without it the
+  island's common-mode voltage hangs on the leaks alone and a short step
+  with a large capacitor is numerically singular;
+* 0-ohm resistors, 0-henry inductors and parts that carry no current
+  (bridges to nowhere, see :mod:`.spice_topology`) merge their two nets;
 * per probe, ``stray`` farads to ground and, while driven, a voltage source
   behind the Thevenin resistance (at least :data:`MIN_SOURCE_R`);
 * a bipolar transistor with three pins has its substrate on its collector,
@@ -28,7 +29,7 @@ What the deck adds to the board (see ``docs/engines.md``, "ngspice engine"):
 
 >>> from incircuit.model import Board, Part
 >>> b = Board("t", (Part("R1;SHELL", "R", ("0", "X Y"), 1e3),))
->>> deck = build(b, ("0",), 1e-12)
+>>> deck = build(b, ("0", "X Y"), 1e-12)
 >>> deck.node_of["0"], deck.node_of["X Y"]
 ('n1', 'n2')
 >>> print(deck.element_lines({}, {})[0])
@@ -46,17 +47,12 @@ from ..circuit import Circuit, Element, elements
 from ..errors import EngineError
 from ..model import Board, Model
 from .base import Drive
+from .spice_topology import ISLAND_C, ISLAND_FRACTION, anchors, simplify
 
 __all__ = ["Deck", "build", "number", "LEAK", "ISLAND_C", "ISLAND_FRACTION", "MIN_SOURCE_R", "MODEL_TYPES"]
 
 #: Ohms from every net to the tester's ground (SPICE's gmin is 1e-12 S).
 LEAK = 1e12
-#: Farads to the tester's ground on one net of each island without a probe's
-#: stray capacitance (at least; see ISLAND_FRACTION): keeps its common-mode
-#: voltage well conditioned.
-ISLAND_C = 1e-15
-#: ... or this fraction of the island's capacitance, when larger.
-ISLAND_FRACTION = 1e-9
 #: ngspice's ``tstep`` as a fraction of the largest step.
 FIRST_STEP = 1e-4
 #: Smallest Thevenin resistance written for a driven probe (ohm).
@@ -207,35 +203,6 @@ class Deck:
 # -- building -----------------------------------------------------------------
 
 
-class _Nets:
-    """Union-find of board nets (0-ohm links) and their generated names."""
-
-    def __init__(self) -> None:
-        self.parent: dict[str, str] = {}
-
-    def find(self, net: str) -> str:
-        self.parent.setdefault(net, net)
-        while self.parent[net] != net:
-            self.parent[net] = self.parent[self.parent[net]]
-            net = self.parent[net]
-        return net
-
-    def join(self, a: str, b: str) -> None:
-        ra, rb = self.find(a), self.find(b)
-        if ra != rb:
-            self.parent[max(ra, rb)] = min(ra, rb)
-
-    def names(self) -> dict[str, str]:
-        roots: dict[str, str] = {}
-        out = {}
-        for net in sorted(self.parent):
-            root = self.find(net)
-            roots.setdefault(root, f"n{len(roots) + 1}")
-        for net in self.parent:
-            out[net] = roots[self.find(net)]
-        return dict(sorted(out.items(), key=lambda kv: (int(kv[1][1:]), kv[0])))
-
-
 def _value(e: Element, unit: str) -> float:
     if e.value is None or not math.isfinite(float(e.value)) or float(e.value) < 0:
         raise EngineError(
@@ -306,7 +273,8 @@ def _semiconductor(n: list[str], kind: str, stype: str) -> tuple[list[str], tupl
     return [d, g, s], ((d, s), (g, s))
 
 
-def _circuit_lines(circuit: Circuit, node_of: Mapping[str, str]) -> tuple[list[_Line], list[str], dict[str, str]]:
+def _circuit_lines(circuit: Circuit, node_of: Mapping[str, str], dropped: set[int]
+                   ) -> tuple[list[_Line], list[str], dict[str, str]]:
     models: list[_Line] = []
     lines: list[_Line] = []
     blame: dict[str, str] = {}
@@ -319,11 +287,14 @@ def _circuit_lines(circuit: Circuit, node_of: Mapping[str, str]) -> tuple[list[_
         counts[kind] = counts.get(kind, 0) + 1
         return f"{kind.lower()}{counts[kind]}"
 
-    for e in circuit.elements:
-        if e.kind not in ("R", "C", "L", "D", "Q", "M", "J") or _is_short(e):
+    coupled = {name for c in circuit.couplings for name in c.inductors}
+    for index, e in enumerate(circuit.elements):
+        if e.kind not in ("R", "C", "L", "D", "Q", "M", "J") or _is_short(e) or index in dropped:
             continue
         part = e.part or e.name
         n = [node_of[p] for p in e.nodes]
+        if e.kind in ("R", "C", "L", "D") and len(set(n)) == 1 and e.name not in coupled:
+            continue  # both ends on one node: carries nothing
         if e.kind in ("R", "C", "L"):
             value = _value(e, {"R": "ohm", "C": "F", "L": "H"}[e.kind])
             if len(n) != 2 or (e.kind == "C" and value == 0.0):
@@ -380,16 +351,11 @@ def build(board: Board, probe_nets: Sequence[str], stray: float) -> Deck:
     if not math.isfinite(stray) or stray < 0:
         raise ValueError(f"stray capacitance must be >= 0, got {stray!r}")
     circuit = elements(board)
-    nets = _Nets()
     for e in circuit.elements:
-        for p in e.nodes:
-            nets.find(p)
-        if _is_short(e):
-            nets.join(*e.nodes[:2])
-    for p in probe_nets:
-        nets.find(p)
-    node_of = nets.names()
-    lines, inductors, blame = _circuit_lines(circuit, node_of)
+        if e.kind in ("R", "C", "L"):
+            _value(e, {"R": "ohm", "C": "F", "L": "H"}[e.kind])
+    node_of, dropped = simplify(circuit, probe_nets)
+    lines, inductors, blame = _circuit_lines(circuit, node_of, dropped)
     nodes = tuple(dict.fromkeys(node_of.values()))
     probe_nodes = tuple(node_of[p] for p in probe_nets)
     return Deck(
@@ -399,30 +365,6 @@ def build(board: Board, probe_nets: Sequence[str], stray: float) -> Deck:
         stray=float(stray),
         lines=tuple(lines),
         inductors=tuple(inductors),
-        anchors=_anchors(circuit, node_of, probe_nodes, probe_nodes if stray > 0 else ()),
+        anchors=anchors(circuit, node_of, probe_nodes, probe_nodes if stray > 0 else ()),
         blame=blame,
     )
-
-
-def _anchors(circuit: Circuit, node_of: Mapping[str, str], probes: Sequence[str],
-             held: Sequence[str]) -> tuple[tuple[str, float], ...]:
-    """One node per island of nodes joined by elements, unless a node in ``held``
-    is in it; a probe node when the island has one."""
-    islands = _Nets()
-    for node in node_of.values():
-        islands.find(node)
-    for e in circuit.elements:
-        for p in e.nodes[1:]:
-            islands.join(node_of[e.nodes[0]], node_of[p])
-    held_roots = {islands.find(n) for n in held}
-    farads: dict[str, float] = {}
-    for e in circuit.elements:
-        if e.kind in ("C", "D", "Q", "M", "J"):  # junctions have capacitance too
-            root = islands.find(node_of[e.nodes[0]])
-            farads[root] = farads.get(root, 0.0) + (abs(float(e.value or 0.0)) if e.kind == "C" else 0.0)
-    chosen: dict[str, str] = {}
-    for node in [*probes, *sorted(set(node_of.values()), key=lambda n: int(n[1:]))]:
-        root = islands.find(node)
-        if root not in held_roots and (root in farads or node in probes):
-            chosen.setdefault(root, node)
-    return tuple((node, max(ISLAND_C, ISLAND_FRACTION * farads.get(root, 0.0))) for root, node in chosen.items())

@@ -36,6 +36,10 @@ INSTALL_HINT = (
     "scripts/setup.sh does it when run as root) or try --engine analytic"
 )
 
+#: Time points one ngspice run may take before it is stopped (about 1 s and
+#: 100 MB on a small board).
+MAX_POINTS = 100_000
+
 _LOCK = threading.RLock()
 _state: dict[str, object] = {}
 
@@ -115,6 +119,22 @@ def _vector(ng, ffi, plot: str, name: str) -> np.ndarray | None:
     return np.frombuffer(ffi.buffer(info.v_realdata, info.v_length * 8), dtype=np.float64).copy()
 
 
+def _run_limited(ng) -> None:
+    """``run``, paused by ngspice itself after :data:`MAX_POINTS` time points."""
+    _command(ng, f"stop after {MAX_POINTS}")
+    try:
+        _command(ng, "run")
+        if any("condition met" in line for line in ng._stderr):
+            raise SimulationFailed(
+                f"ngspice needed more than {MAX_POINTS} time points for one step "
+                "(a lightly damped resonance or a very stiff corner of the board)"
+            )
+    finally:
+        keep = (list(ng._stdout), list(ng._stderr))
+        _command(ng, "delete all")
+        ng._stdout, ng._stderr = keep
+
+
 def _errors(lines: Sequence[str]) -> list[str]:
     return [s.strip() for s in lines if s.strip() and not s.lstrip().lower().startswith(("warning", "note"))]
 
@@ -141,7 +161,7 @@ def run(deck: str, vectors: Sequence[str], stop: float) -> dict[str, np.ndarray]
             problems = _errors(ng._stderr)
             if rc or problems:
                 raise SimulationFailed("ngspice rejected the circuit", problems or list(ng._stdout[-5:]))
-            _command(ng, "run")
+            _run_limited(ng)
             messages = list(ng._stderr)
             plots = ng.plot_names
             plot = plots[0] if plots and plots[0].startswith("tran") else None
