@@ -85,8 +85,9 @@ class KindStats:
 
     ``log_mean``/``log_sigma`` are the mean and standard deviation of the
     natural log of the value (with the instrument's error);
-    ``log_sigma_circuit`` leaves the instrument's error out. ``esr_*`` the
-    same for an ESR reading when the samples carry one.
+    ``log_sigma_circuit`` leaves the instrument's error out. ``esr_mean``,
+    ``esr_sigma`` (ohm, linear: a good capacitor's ESR reads 0) and
+    ``esr_step`` (the ESR resolution) when the samples carry an ESR.
     """
 
     kind: str
@@ -98,8 +99,11 @@ class KindStats:
     log_mean: float | None = None
     log_sigma: float | None = None
     log_sigma_circuit: float | None = None
-    esr_log_mean: float | None = None
-    esr_log_sigma: float | None = None
+    esr_mean: float | None = None
+    esr_sigma: float | None = None
+    esr_step: float | None = None
+    esr_low: float | None = None
+    esr_high: float | None = None
 
 
 @dataclass(frozen=True)
@@ -143,12 +147,20 @@ class Band:
         return stats.fraction if stats else 0.0
 
     def contains(self, reading: Reading) -> bool:
-        """Whether ``reading`` is of the band's kind and inside its limits."""
+        """Whether ``reading`` is of the band's kind and inside its limits
+        (its ESR too, within one resolution step, when both have one)."""
         if reading.kind != self.kind:
             return False
         if reading.value is None or self.low is None or self.high is None:
             return reading.value is None and self.low is None
-        return self.low <= reading.value <= self.high
+        if not self.low <= reading.value <= self.high:
+            return False
+        stats = self.kinds[self.kind]
+        esr = reading.extra.get("esr")
+        if esr is not None and stats.esr_low is not None and stats.esr_high is not None:
+            step = stats.esr_step or 0.0
+            return stats.esr_low - step <= float(esr) <= stats.esr_high + step  # type: ignore[arg-type]
+        return True
 
     def describe(self) -> str:
         """One line, e.g. ``"capacitor 4.3 uF .. 5.2 uF (100 % of 500 samples, 0.5-99.5 %)"``."""
@@ -163,8 +175,12 @@ class Band:
             where += f"; {self.note}"
         if self.low is None:
             return f"{self.kind} ({where})"
-        return (f"{self.kind} {format_value(self.low, self.unit)} .. {format_value(self.high, self.unit)} "
-                f"({where}, {lo * 100:g}-{hi * 100:g} percentiles)")
+        stats = self.kinds[self.kind]
+        esr = ""
+        if stats.esr_high is not None:
+            esr = f", ESR up to {format_value(stats.esr_high + (stats.esr_step or 0.0), 'ohm')}"
+        return (f"{self.kind} {format_value(self.low, self.unit)} .. {format_value(self.high, self.unit)}"
+                f"{esr} ({where}, {lo * 100:g}-{hi * 100:g} percentiles)")
 
     def to_dict(self) -> dict:
         return {
@@ -297,12 +313,19 @@ def band_from_readings(readings: Sequence[Reading], probes: Sequence[str] = (),
         ok = values[np.isfinite(values)]
         mean, sigma = _log_stats(values)
         _, sigma_circuit = _log_stats(clean)
-        esr = np.array([float(r.extra["esr"]) for r in chosen if r.extra.get("esr")], dtype=float)
-        esr_mean, esr_sigma = _log_stats(esr) if esr.size > count // 2 else (None, None)
+        esr = np.array([float(r.extra["esr"]) for r in chosen if r.extra.get("esr") is not None],  # type: ignore[arg-type]
+                       dtype=float)
+        steps = [float(r.extra["esr_resolution"]) for r in chosen if r.extra.get("esr_resolution")]  # type: ignore[arg-type]
+        esr_mean = esr_sigma = esr_step = esr_low = esr_high = None
+        if esr.size > count // 2:
+            esr_mean, esr_sigma = float(esr.mean()), float(esr.std(ddof=1)) if esr.size > 1 else 0.0
+            esr_step = float(np.median(steps)) if steps else None
+            esr_low, esr_high = (float(np.quantile(esr, q)) for q in quantiles)
         stats[kind] = KindStats(
             kind, count / n, count,
             float(np.quantile(ok, quantiles[0])), float(np.quantile(ok, quantiles[1])),
-            float(np.median(ok)), mean, sigma, sigma_circuit, esr_mean, esr_sigma,
+            float(np.median(ok)), mean, sigma, sigma_circuit, esr_mean, esr_sigma, esr_step,
+            esr_low, esr_high,
         )
     top = stats[order[0]]
     unit = next((r.unit for r in readings if r.kind == top.kind and r.unit), None)

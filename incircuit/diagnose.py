@@ -191,8 +191,10 @@ def _prediction(pred: Reading, band: Band, accuracy) -> Prediction:
     if accuracy is not None and pred.value:
         s_instr = abs(float(accuracy(pred))) / (pred.value * _SQRT3)
     esr = pred.extra.get("esr")
+    step = pred.extra.get("esr_resolution")
     return Prediction(pred.kind, pred.value, combine_sigma(s_circuit, s_instr, MODEL_SIGMA),
-                      esr=float(esr) if esr else None)  # type: ignore[arg-type]
+                      esr=None if esr is None else float(esr),  # type: ignore[arg-type]
+                      esr_sigma=None if step is None else float(step))  # type: ignore[arg-type]
 
 
 def _healthy_prediction(band: Band, reading: Reading) -> Prediction:
@@ -200,8 +202,8 @@ def _healthy_prediction(band: Band, reading: Reading) -> Prediction:
     kind = reading.kind if band.kinds.get(reading.kind) and band.kinds[reading.kind].log_mean is not None \
         else band.kind
     s = band.kinds[kind]
-    esr = math.exp(s.esr_log_mean) if s.esr_log_mean is not None else None
-    return Prediction(kind, s.median, combine_sigma(s.log_sigma, MODEL_SIGMA), kinds, s.log_mean, esr)
+    return Prediction(kind, s.median, combine_sigma(s.log_sigma, MODEL_SIGMA), kinds, s.log_mean,
+                      s.esr_mean, combine_sigma(s.esr_sigma, s.esr_step) if s.esr_mean is not None else None)
 
 
 def _z(reading: Reading, p: Prediction) -> float:
@@ -347,11 +349,7 @@ def _rows(readings: Sequence[Reading]) -> tuple[tuple, ...]:
 
 def _inside(pred: Reading | None, band: Band) -> bool:
     """Whether a predicted reading lies inside the healthy band."""
-    if pred is None or pred.kind != band.kind:
-        return False
-    if pred.value is None or band.low is None or band.high is None:
-        return pred.value is None and band.low is None
-    return band.low <= pred.value <= band.high
+    return pred is not None and band.contains(pred)
 
 
 def _leaders(ranked: Sequence[Scored], groups: Sequence[tuple[str, float]]) -> list[Scored]:

@@ -21,7 +21,9 @@ One documented likelihood, used for every hypothesis (healthy or faulty):
   misread display). It also stands in for the value term when the
   hypothesis predicts another kind or no value.
 * A secondary ESR, when both the reading and the prediction have one, adds
-  a Gaussian on its log with ``ESR_SIGMA``.
+  a Gaussian on its value (linear: a good capacitor's ESR reads 0) with
+  ``sigma = sqrt((ESR_RELATIVE * esr)^2 + step^2)``, ``step`` the tester's
+  ESR resolution, mixed with ``OUTLIER / ESR_SPAN``.
 
 A reading without a value ("nothing") scores ``P_h(kind)`` alone.
 
@@ -49,7 +51,8 @@ __all__ = [
     "OUTLIER",
     "LOG_SPAN",
     "MODEL_SIGMA",
-    "ESR_SIGMA",
+    "ESR_RELATIVE",
+    "ESR_SPAN",
 ]
 
 #: Least probability given to a reading kind a hypothesis does not predict.
@@ -61,9 +64,11 @@ LOG_SPAN = math.log(1e12)
 #: Relative (log) allowance for the simulated instrument differing from a
 #: real one: a project choice, 3 %.
 MODEL_SIGMA = 0.03
-#: Log-spread of an ESR reading: a project choice, 30 % (ESR from a voltage
-#: step over a few ohms is coarse on such instruments, common practice).
-ESR_SIGMA = 0.3
+#: Relative spread of an ESR reading: a project choice, 30 % (ESR from a
+#: voltage step over a few ohms is coarse on such instruments, common practice).
+ESR_RELATIVE = 0.3
+#: Width (ohm) of the flat density beside the ESR Gaussian.
+ESR_SPAN = 100.0
 
 _HALF_LOG_2PI = 0.5 * math.log(2.0 * math.pi)
 
@@ -75,7 +80,7 @@ class Prediction:
     ``kind``/``value``: the predicted reading (``log_mean`` overrides
     ``ln value`` when given); ``sigma``: total log-spread;
     ``kinds``: share per kind (default: all of ``kind``); ``esr``: the
-    predicted ESR (ohm) or None.
+    predicted ESR (ohm) or None, with its standard deviation ``esr_sigma``.
     """
 
     kind: str
@@ -84,6 +89,7 @@ class Prediction:
     kinds: Mapping[str, float] = field(default_factory=dict)
     log_mean: float | None = None
     esr: float | None = None
+    esr_sigma: float | None = None
 
     def kind_probability(self, kind: str) -> float:
         share = self.kinds.get(kind, 0.0) if self.kinds else float(kind == self.kind)
@@ -108,10 +114,10 @@ def _log_gauss(x: float, mu: float, sigma: float) -> float:
     return -0.5 * z * z - math.log(sigma) - _HALF_LOG_2PI
 
 
-def _log_mix(log_gauss: float) -> float:
-    """ln[(1 - OUTLIER) e^log_gauss + OUTLIER / LOG_SPAN], stably."""
+def _log_mix(log_gauss: float, span: float = LOG_SPAN) -> float:
+    """ln[(1 - OUTLIER) e^log_gauss + OUTLIER / span], stably."""
     a = math.log1p(-OUTLIER) + log_gauss
-    b = math.log(OUTLIER / LOG_SPAN)
+    b = math.log(OUTLIER / span)
     hi, lo = max(a, b), min(a, b)
     return hi + math.log1p(math.exp(lo - hi))
 
@@ -129,6 +135,7 @@ def log_likelihood(reading: Reading, predicted: Prediction) -> float:
     sigma = max(predicted.sigma, 1e-6)
     total = kind_term + _log_mix(_log_gauss(math.log(reading.value), mu, sigma))
     esr = reading.extra.get("esr")
-    if esr and predicted.esr and predicted.esr > 0:
-        total += _log_mix(_log_gauss(math.log(float(esr)), math.log(predicted.esr), ESR_SIGMA))
+    if esr is not None and predicted.esr is not None:
+        sigma_esr = max(predicted.esr_sigma or 0.0, ESR_RELATIVE * predicted.esr, 1e-3)
+        total += _log_mix(_log_gauss(float(esr), predicted.esr, sigma_esr), ESR_SPAN)  # type: ignore[arg-type]
     return total

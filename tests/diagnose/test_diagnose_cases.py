@@ -117,3 +117,25 @@ def test_evidence_of_several_readings_adds_in_log_likelihood(triangle):
     a, b, ab = scores(first), scores(second), scores(both)
     for key in ab:
         assert ab[key] == pytest.approx(a[key] + b[key], abs=1e-9)  # same runs, same seed
+
+
+AGED = Board("aged electrolytic", (
+    Part("C1", "C", ("V", "0"), 470e-6, tolerance=T(0.2), params={"esr": 0.1}),
+    Part("C2", "C", ("V", "0"), 100e-9, tolerance=T(0.1)),
+    Part("R1", "R", ("V", "0"), 10e3, tolerance=T(0.05)),
+))
+
+
+def test_high_esr_with_normal_capacitance_is_removed():
+    # An aged electrolytic can keep its capacitance and gain series
+    # resistance (common practice). 430 uF is inside the healthy band; the
+    # ESR of 2.3 ohm is far above a healthy 0.1 ohm.
+    d = _run(AGED, "C1", ("C1", None, "430uF esr 2.3"))
+    assert d.decision == "remove-and-test"
+    best = d.hypotheses[0].hypothesis
+    assert (best.part, best.fault) == ("C1", "esr")
+    # the tester resolves ESR in steps of about 0.31 ohm at this size
+    assert best.amount == pytest.approx(2.3, abs=0.35)
+    # without the ESR the same capacitance reads as healthy
+    plain = _run(AGED, "C1", ("C1", None, "430uF"))
+    assert plain.decision == "leave-in-place"

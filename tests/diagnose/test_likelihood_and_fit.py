@@ -84,3 +84,16 @@ def test_fit_skips_refining_when_no_cell_can_explain_the_reading():
     f = fit(_parallel_caps_objective(5e3), "drift", targets=[math.log(5e3)])
     assert not f.refined
     assert f.amount == pytest.approx(FIT_RANGES["drift"][1], rel=1e-9)  # the nearest end
+
+
+def test_esr_term_is_a_gaussian_on_the_value():
+    # ESR compared on a linear scale (a good capacitor reads 0 ohm); normal
+    # density as above, sigma = max(step, 30 % of the prediction).
+    from incircuit.likelihood import ESR_SPAN
+    p = Prediction("capacitor", 1e-4, sigma=0.05, esr=0.0, esr_sigma=0.31)
+    base = log_likelihood(Reading("capacitor", 1e-4), p)
+    with_esr = log_likelihood(Reading("capacitor", 1e-4, extra={"esr": 2.3}), p)
+    z = 2.3 / 0.31
+    density = math.exp(-0.5 * z * z) / (0.31 * math.sqrt(2 * math.pi))
+    expected = math.log((1 - OUTLIER) * density + OUTLIER / ESR_SPAN)
+    assert with_esr - base == pytest.approx(expected, rel=1e-9)  # same formula, rounding only
