@@ -18,6 +18,7 @@ from __future__ import annotations
 import argparse
 
 from ..chips import apply_pin_roles
+from ..demo_boards import resolve_board
 from ..errors import InputError
 from ..model import Board
 from ..netlist import load
@@ -53,6 +54,16 @@ def switch_states(args: argparse.Namespace) -> dict[str, str]:
 
 
 def load_board_from_args(args: argparse.Namespace, path: str | None = None) -> Board:
-    """Import ``args.board`` (or ``path``) and apply the pin roles the options give."""
-    board = load(path or args.board, keep_sources=bool(getattr(args, "keep_sources", False)))
-    return apply_pin_roles(board, getattr(args, "pins", None) or (), switch_states(args))
+    """Import the board and apply the pin roles the options give.
+
+    Without ``path``, ``args.board`` is a netlist file or a demo board name;
+    a demo board brings its own pin-role file, and the user's ``--pins``
+    files come after it (and so win). With ``path`` that file is read and
+    only the user's ``--pins`` apply.
+    """
+    pins = list(getattr(args, "pins", None) or ())
+    if path is None:
+        path, demo_pins = resolve_board(args.board)
+        pins = [*demo_pins, *pins]
+    board = load(path, keep_sources=bool(getattr(args, "keep_sources", False)))
+    return apply_pin_roles(board, pins, switch_states(args))

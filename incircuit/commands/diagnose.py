@@ -30,7 +30,6 @@ import math
 import sys
 
 from ..bands import DIAGNOSE_SAMPLES, DEFAULT_SEED
-from ..demo_boards import resolve_board
 from ..diagnose import Diagnosis, diagnose
 from ..errors import EngineError, InputError
 from ..model import Reading
@@ -111,9 +110,7 @@ def run(args: argparse.Namespace) -> int:
         raise InputError("give --reading TEXT, --readings FILE, or both")
     if args.samples < 20:
         raise InputError(f"--samples {args.samples}: use at least 20")
-    path, demo_pins = resolve_board(args.board)
-    options = argparse.Namespace(**{**vars(args), "pins": [*demo_pins, *(args.pins or [])]})
-    board = load_board_from_args(options, path)
+    board = load_board_from_args(args)  # a demo board name brings its pin-role file
     if not board.has_part(args.part):
         raise InputError(f"no part {args.part!r} on board {board.name}", board.path)
     profile = load_profile(args.tester)

@@ -10,7 +10,9 @@ the probes on two nets. BOARD is a netlist file or a demo board name.
 With --json one object: ``part`` (null with --between), ``probes`` (net
 names, probe 1 first), ``engine``, ``isolated`` and ``in_circuit``, each
 ``{kind, value, unit, extra}`` (SI units; ``isolated`` is null with
---between). The tester model and its profile keys: docs/tester-model.md.
+--between), ``uncertain`` (reasons the prediction rests on guessed or
+unknown pin roles of unmodelled parts; empty when none, docs/pin-roles.md).
+The tester model and its profile keys: docs/tester-model.md.
 """
 
 from __future__ import annotations
@@ -18,8 +20,9 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+from typing import Sequence
 
-from ..demo_boards import resolve_board
+from ..chips import uncertainty_reasons
 from ..engines import ENGINES
 from ..errors import EngineError, InputError
 from ..model import Reading
@@ -65,9 +68,7 @@ def run(args: argparse.Namespace) -> int:
     if args.between and args.probes:
         raise InputError("--probes goes with a PART, not with --between")
     profile = load_profile(args.tester)
-    path, demo_pins = resolve_board(args.board)
-    options = argparse.Namespace(**{**vars(args), "pins": [*demo_pins, *(args.pins or [])]})
-    board = load_board_from_args(options, path)
+    board = load_board_from_args(args)  # a demo board name brings its pin-role file
     probes = None
     if args.probes:
         probes = [n.strip() for n in args.probes.split(",")]
@@ -83,10 +84,11 @@ def run(args: argparse.Namespace) -> int:
         hint = f" ({error.hint})" if error.hint else ""
         print(f"incircuit: {what}: {error.message}{hint}", file=sys.stderr)
         return 1
+    uncertain = uncertainty_reasons(board, found.probes)
     if args.json:
-        print(json.dumps(found.to_dict(), indent=2))
+        print(json.dumps({**found.to_dict(), "uncertain": uncertain}, indent=2))
     else:
-        print("\n".join(prediction_lines(found, profile, board.name)))
+        print("\n".join(prediction_lines(found, profile, board.name, uncertain)))
     return 0
 
 
@@ -109,8 +111,9 @@ def reading_text(reading: Reading, profile: Profile | None = None) -> str:
     return text + (f"; {', '.join(shown)}" if shown else "")
 
 
-def prediction_lines(found: Prediction, profile: Profile | None = None, board: str = "") -> list[str]:
-    """The text report of one prediction."""
+def prediction_lines(found: Prediction, profile: Profile | None = None, board: str = "",
+                     uncertain: Sequence[str] = ()) -> list[str]:
+    """The text report of one prediction; ``uncertain``: why it rests on guessed pin roles."""
     probes = ", ".join(f"{i} on {net}" for i, net in enumerate(found.probes, 1))
     head = f"{found.part}" if found.part else "between nets"
     lines = [f"Board: {board}" if board else "", f"{head}: probe {probes} (engine {found.engine})"]
@@ -124,5 +127,6 @@ def prediction_lines(found: Prediction, profile: Profile | None = None, board: s
             diff = found.difference()
             change = "-" if diff is None else f"{diff * 100:+.1f} %"
         lines.append(f"  difference:  {change}")
+    lines += [f"  {reason}" for reason in uncertain]
     lines += ["", *caution_lines()]
     return [line for i, line in enumerate(lines) if line or i > 0]

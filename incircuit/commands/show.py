@@ -12,7 +12,12 @@ demo board brings its own pin-role file).
 With --json the same is printed as one JSON object. Board summary keys:
 ``board`` (title), ``path``, ``parts`` (count), ``kinds`` (kind letter ->
 count), ``nets`` (names), ``models`` (name -> type), ``unmodelled`` (list
-of {``part``, ``subckt``, ``roles``: where its pin roles came from}), ``tied`` (list of {``nets``, ``parts``}), ``notes``. Part keys:
+of {``part``, ``subckt``, ``origin`` (where its pin roles came from: ``file
+<path>``, ``library <name>``, ``guess`` or ``unknown``; also as ``roles``),
+``entry`` (``path:line [table]`` or null), ``pins`` (list of {``pin``,
+``name``, ``net``, ``role``, ``basis`` (what a guess rests on)}), ``switch``
+(state, switches only)}), ``uncertain_nets`` (net -> why: it touches a
+guessed or unknown pin), ``tied`` (list of {``nets``, ``parts``}), ``notes``. Part keys:
 ``board``, ``path``, ``part`` ({``name``, ``kind``, ``pins`` (pin names),
 ``nets``, ``value``, ``unit``, ``model``, ``tolerance`` ({``minus``,
 ``plus``, ``origin``} or null), ``location``}), ``tied`` (as above, the
@@ -32,8 +37,8 @@ import math
 from collections import Counter
 from typing import Iterable
 
-from ..chips import unmodelled_summary
-from ..demo_boards import resolve_board
+from ..chips import ALL_ROLES, uncertain_nets, unmodelled_summary
+from ..chips.pinmodels import SHORT_OHMS
 from ..errors import InputError
 from ..graph import (
     MAX_PATHS,
@@ -86,10 +91,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def run(args: argparse.Namespace) -> int:
     if args.part and args.between:
         raise InputError("give a PART or --between NET_A NET_B, not both")
-    path, demo_pins = resolve_board(args.board)
-    # a demo board brings its own pin-role file; the user's --pins come after and win
-    options = argparse.Namespace(**{**vars(args), "pins": [*demo_pins, *(args.pins or [])]})
-    board = load_board_from_args(options, path)
+    board = load_board_from_args(args)  # a demo board name brings its pin-role file
     if args.between:
         found = between(board, *args.between)
         groups = [g for g in tied_nets(board) if g & set(found.nets)]
@@ -124,8 +126,8 @@ def summary(board: Board) -> dict:
         "kinds": {k: kinds[k] for k in sorted(kinds, key=lambda k: (order.get(k, 99), k))},
         "nets": list(board.nets),
         "models": {name: m.type for name, m in sorted(board.models.items())},
-        "unmodelled": [{"part": u["part"], "subckt": u["subckt"], "roles": u["origin"]}
-                       for u in unmodelled_summary(board)],
+        "unmodelled": [{"roles": u["origin"], **u} for u in unmodelled_summary(board)],
+        "uncertain_nets": uncertain_nets(board),
         "tied": _tied(board, tied_nets(board)),
         "notes": list(board.notes),
     }
@@ -161,12 +163,40 @@ def _summary_lines(board: Board, d: dict) -> list[str]:
     lines = [f"Board:  {d['board']}", f"File:   {d['path']}", f"Parts:  {d['parts']} ({kinds})",
              f"Nets:   {len(d['nets'])}: {', '.join(d['nets'])}", f"Models: {models}"]
     if d["unmodelled"]:
-        lines.append("Unmodelled parts (where their pin roles come from; see --pins):")
-        lines.extend(f"  {u['part']} ({u['subckt']}): {u['roles']}" for u in d["unmodelled"])
+        lines.append("Unmodelled parts (pin roles and where they come from; see --pins):")
+        for u in d["unmodelled"]:
+            lines.extend(_unmodelled_lines(u))
+    if d["uncertain_nets"]:
+        lines.append(f"Uncertain nets (touch a guessed or unknown pin; readings on them are marked): "
+                     f"{len(d['uncertain_nets'])}: {', '.join(sorted(d['uncertain_nets']))}")
     lines.extend(_tied_lines(board, tied_nets(board)))
     if d["notes"]:
         lines.append("Notes from the import:")
         lines.extend(f"  {n}" for n in d["notes"])
+    return lines
+
+
+def _tie_value(p: Part) -> str:
+    if p.kind == "X":  # a short or a closed switch by its pin role
+        role = (p.params.get("roles") or ("",))[0]  # type: ignore[index]
+        return f"{role}, {format_value(p.params.get('short_ohms') or SHORT_OHMS, 'ohm')}"  # type: ignore[arg-type]
+    return format_value(p.value, _UNITS.get(p.kind))
+
+
+def _unmodelled_lines(u: dict) -> list[str]:
+    """One part's roles, grouped by role: ``supply: 4 VCC (+3V3), 6 (+3V3)``."""
+    origin = u["origin"]
+    if u.get("entry"):  # "file <path>" -> "file <path>:<line> [table]"
+        origin = f"file {u['entry']}" if origin.startswith("file ") else f"{origin}: {u['entry']}"
+    state = f", switch {u['switch']}" if u.get("switch") else ""
+    lines = [f"  {u['part']} ({u['subckt']}): {origin}{state}"]
+    groups: dict[str, list[str]] = {}
+    for pin in u["pins"]:
+        label = f"{pin['pin']}{' ' + pin['name'] if pin['name'] else ''} ({pin['net']})"
+        role = pin["role"] if pin["role"] != "unknown" else "unknown (open)"
+        groups.setdefault(role, []).append(label)
+    order = {r: i for i, r in enumerate((*ALL_ROLES, "unknown (open)"))}
+    lines.extend(f"    {role}: {', '.join(groups[role])}" for role in sorted(groups, key=order.get))
     return lines
 
 
@@ -177,7 +207,7 @@ def _tied_lines(board: Board, groups: Iterable[frozenset[str]]) -> list[str]:
     lines = [f"Tied nets (joined by inductors or parts below {format_value(TIE_OHMS, 'ohm')}; each group acts as one net):"]
     for g in groups:
         parts = [board.part(n) for n in tie_parts(board, g)]
-        by = ", ".join(f"{p.name} {format_value(p.value, _UNITS.get(p.kind))}" for p in parts)
+        by = ", ".join(f"{p.name} {_tie_value(p)}" for p in parts)
         lines.append(f"  {', '.join(sorted(g))}  (by {by})")
     return lines
 
