@@ -43,6 +43,7 @@ from ..model import Board
 from .base import Drive, StepResult, Watch
 from .branches import from_circuit
 from .mna import Network, reduce_network
+from .general import GeneralStatic, general_decompose
 from .solve import Static, cap_islands, decompose, first_event, make_split
 
 __all__ = ["ENGINE", "AnalyticEngine", "AnalyticSession", "R_MIN", "EPS_V", "MAX_EVENTS", "one_blas_thread"]
@@ -106,6 +107,15 @@ class AnalyticSession:
         for j, (a, k, _, _) in enumerate(net.junctions):
             self._D[j, a] += 1.0
             self._D[j, k] -= 1.0
+        # controlled sources (transistor action, see .active): gain times a
+        # junction's chord current, from one net to another
+        ctrl = net.controlled
+        self._ctrl_T = np.zeros((len(ctrl), n))
+        for k, (a, b, _, _) in enumerate(ctrl):
+            self._ctrl_T[k, a] += 1.0
+            self._ctrl_T[k, b] -= 1.0
+        self._ctrl_j = np.array([j for _, _, j, _ in ctrl], dtype=int)
+        self._ctrl_gain = np.array([gain for _, _, _, gain in ctrl], dtype=float)
         self._statics: dict = {}
         self._decs: dict = {}
         self._out_names = [p for p in names]
@@ -127,7 +137,11 @@ class AnalyticSession:
             if self._curves:
                 g = np.array([c.g[s] for c, s in zip(self._curves, self._seg)])
                 G = G + self._D.T @ (g[:, None] * self._D)
-            st = Static(self._split(dkey, gdrive), G, self.network.A)
+                if len(self._ctrl_j):
+                    gm = self._ctrl_gain * g[self._ctrl_j]
+                    G = G + self._ctrl_T.T @ (gm[:, None] * self._D[self._ctrl_j])
+            kind = GeneralStatic if len(self._ctrl_j) else Static
+            st = kind(self._split(dkey, gdrive), G, self.network.A)
             if len(self._statics) >= CACHE_SIZE:
                 self._statics.clear()
                 self._decs.clear()
@@ -138,7 +152,8 @@ class AnalyticSession:
         key = (dkey, tuple(self._seg))
         dec = self._decs.get(key)
         if dec is None:
-            dec = decompose(self._static(dkey, gdrive), self.network.Lm)
+            st = self._static(dkey, gdrive)
+            dec = (general_decompose if len(self._ctrl_j) else decompose)(st, self.network.Lm)
             self._decs[key] = dec
         return dec
 
@@ -146,7 +161,10 @@ class AnalyticSession:
         if not self._curves:
             return bdrive
         i0 = np.array([c.i0[s] for c, s in zip(self._curves, self._seg)])
-        return bdrive - self._D.T @ i0
+        out = bdrive - self._D.T @ i0
+        if len(self._ctrl_j):
+            out = out - self._ctrl_T.T @ (self._ctrl_gain * i0[self._ctrl_j])
+        return out
 
     # -- step start: consistent junction segments -------------------------
     def _settle(self, dkey: tuple, gdrive: np.ndarray, bdrive: np.ndarray) -> None:

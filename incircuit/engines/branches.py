@@ -7,9 +7,11 @@ fixed linear capacitors:
 
 * D: anode-cathode junction from the model's is, n, rs, bv, ibv (times
   ``area``); ``cjo`` across it.
-* Q (C B E): base-emitter junction from is, nf and base-collector junction
-  from is, nr (NPN: anodes at the base; PNP reversed), series resistance
-  ``rb + re`` and ``rb + rc``; cje, cjc across them. No transistor action yet.
+* Q (C B E): the Ebers-Moll transport model of :mod:`.active`: base-emitter
+  and base-collector junctions from is/bf, nf and is/br, nr (NPN: anodes at
+  the base; PNP reversed), series resistance ``rb + re`` and ``rb + rc``,
+  cje and cjc across them, and the transport current as two current
+  sources controlled by the junction currents (:attr:`Branches.controlled`).
 * M (D G S B): bulk-drain and bulk-source junctions from is (NMOS: anodes at
   the bulk; PMOS reversed), so with bulk tied to source the body diode runs
   source to drain; cbd, cbs across them; gate capacitances ``cgso*w`` and
@@ -34,6 +36,7 @@ from typing import Iterable, Mapping
 
 from ..circuit import Circuit, Element
 from ..errors import EngineError
+from .active import bjt_branches
 from .pwl import Curve, junction_curve
 
 __all__ = ["Branches", "to_branches", "from_circuit"]
@@ -55,6 +58,9 @@ class Branches:
     couplings: list[tuple[str, str, float]] = field(default_factory=list)
     junctions: list[tuple[str, str, str, Curve]] = field(default_factory=list)
     ties: list[tuple[str, str]] = field(default_factory=list)
+    #: Current sources ``(from, to, junction name, gain)``: ``gain`` times the
+    #: named junction's current flows from net ``from`` to net ``to``.
+    controlled: list[tuple[str, str, str, float]] = field(default_factory=list)
 
     def nets(self) -> tuple[str, ...]:
         found: set[str] = set()
@@ -94,13 +100,7 @@ def _semiconductor(br: Branches, e: Element) -> None:
         curve = junction_curve(is_, _p(mp, "n", 1.0), _p(mp, "rs", 0.0) / area, _p(mp, "bv", math.inf), _p(mp, "ibv", 1e-3) * area)
         _junction(br, e.name, a, k, curve, _p(mp, "cjo", _p(mp, "cj0", 0.0)) * area)
     elif e.kind == "Q":
-        c, b, em = e.nodes[:3]
-        rb = _p(mp, "rb", 0.0) / area
-        be = junction_curve(is_, _p(mp, "nf", 1.0), rb + _p(mp, "re", 0.0) / area)
-        bc = junction_curve(is_, _p(mp, "nr", 1.0), rb + _p(mp, "rc", 0.0) / area)
-        pnp = mtype == "PNP"
-        _junction(br, e.name + ".BE", *((em, b) if pnp else (b, em)), be, _p(mp, "cje", 0.0) * area)
-        _junction(br, e.name + ".BC", *((c, b) if pnp else (b, c)), bc, _p(mp, "cjc", 0.0) * area)
+        bjt_branches(br, e)
     elif e.kind == "M":
         d, g, s = e.nodes[:3]
         bulk = e.nodes[3] if len(e.nodes) > 3 else s

@@ -58,6 +58,11 @@ class Network:
         matrix ``m x m`` (mutual terms from couplings).
     junctions
         ``(anode, cathode, curve, name)`` per junction.
+    controlled
+        ``(from, to, junction, gain)`` per controlled current source:
+        ``gain`` times junction ``junction``'s current (an index into
+        :attr:`junctions`) flows from net ``from`` to net ``to``. They make
+        ``G`` unsymmetric once folded in (see :mod:`.general`).
     probes
         Index of each probe's net.
     grounded
@@ -79,6 +84,7 @@ class Network:
     eliminated: tuple[str, ...] = ()
     recover: np.ndarray = field(default_factory=lambda: np.zeros((0, 0)))
     where: dict[str, tuple[str, int]] = field(default_factory=dict)
+    controlled: tuple[tuple[int, int, int, float], ...] = ()
 
     def voltages(self, x: np.ndarray) -> dict[str, float]:
         """Every board net's voltage from the kept nets' voltages ``x``."""
@@ -126,7 +132,8 @@ def reduce_network(
     find = uf.find
     probes = tuple(find(p) for p in probe_nets)
 
-    # (kind, a, b, value, tag) with kind in R C L J; tag: inductor name or curve
+    # (kind, a, b, value, tag) with kind in R C L J G; tag: inductor name,
+    # junction name, or (G) the name of the controlling junction
     items: list[list] = []
     for a, b, g in branches.resistors:
         items.append(["R", find(a), find(b), g, None])
@@ -137,6 +144,8 @@ def reduce_network(
         items.append(["L", find(a), find(b), h, name])
     for name, a, b, curve in branches.junctions:
         items.append(["J", find(a), find(b), curve, name])
+    for a, b, name, gain in getattr(branches, "controlled", ()):
+        items.append(["G", find(a), find(b), gain, name])
     items = [it for it in items if it[1] != it[2] or (it[0] == "L" and it[4] in coupled)]
 
     # connected component of the probes (couplings join inductors magnetically)
@@ -181,6 +190,7 @@ def reduce_network(
     l_names: list[str] = []
     l_vals: list[float] = []
     junctions = []
+    sources = []
     for kind, a, b, v, tag in items:
         i, j = index[a], index[b]
         if kind == "R":
@@ -196,8 +206,13 @@ def reduce_network(
             A_cols.append((i, j))
             l_names.append(tag)
             l_vals.append(v)
+        elif kind == "G":
+            sources.append((i, j, tag, v))
         else:
             junctions.append((i, j, v, tag))
+    # a source whose junction is gone (both ends on one net) carries nothing
+    j_index = {name: k for k, (_, _, _, name) in enumerate(junctions)}
+    controlled = tuple((i, j, j_index[tag], float(v)) for i, j, tag, v in sources if tag in j_index)
     grounded = np.zeros(nk, dtype=bool)
     if stray > 0:
         for p in probes:
@@ -261,6 +276,7 @@ def reduce_network(
         eliminated=tuple(elim),
         recover=recover,
         where=where,
+        controlled=controlled,
     )
 
 

@@ -1,9 +1,12 @@
-"""Transistor junctions seen by the analytic engine (no transistor action yet).
+"""Transistor junctions seen by the analytic engine.
 
 Each junction is a diode following the Shockley equation (Sze, Physics of
 Semiconductor Devices) with the SPICE model's saturation current and
 emission coefficient (ngspice manual: BJT is/nf/nr, MOSFET bulk junction is,
-JFET gate junction is/n); the tolerance is the documented chord bound.
+JFET gate junction is/n); the tolerance is the documented chord bound. A
+bipolar junction with the third pin floating follows the Ebers-Moll
+transport model (Ebers & Moll 1954; Sze ch. 5): with the collector open,
+``Ic = 0`` gives ``Ie = Is (1/(1 + BR) + 1/BF) (exp(Vbe / (NF Vt)) - 1)``.
 """
 
 from __future__ import annotations
@@ -36,16 +39,17 @@ def assert_shockley(v, i, is_, n):
 
 @pytest.mark.parametrize("mtype", ["NPN", "PNP"])
 def test_bjt_junctions(mtype):
+    bf, br = 100.0, 1.0  # SPICE defaults (ngspice manual, BJT model)
     model = Model("QX", mtype, {"is": 1e-15, "nf": 1.0, "nr": 1.2})
     b = Board("t", (Part("Q1", "Q", ("C", "B", "E"), model="QX"),), {"QX": model})
     sign = 1 if mtype == "NPN" else -1
     base_plus = ("B", "E") if sign > 0 else ("E", "B")
-    v, i = forward(b, *base_plus)
-    assert_shockley(v, i, 1e-15, 1.0)
+    v, i = forward(b, *base_plus)  # collector open: Ebers-Moll, see the module text
+    assert_shockley(v, i, 1e-15 * (1 / (1 + br) + 1 / bf), 1.0)
     v, i = forward(b, *(("B", "C") if sign > 0 else ("C", "B")))
-    assert_shockley(v, i, 1e-15, 1.2)
-    # the opposite polarity blocks; collector-emitter blocks both ways (two
-    # back-to-back junctions, no transistor action modelled yet)
+    assert_shockley(v, i, 1e-15 * (1 / (1 + bf) + 1 / br), 1.2)
+    # the opposite polarity blocks; collector-emitter blocks both ways with
+    # the base open (only the junctions' leakage, amplified)
     v, i = forward(b, *base_plus[::-1])
     assert i == pytest.approx(0.0, abs=1e-9)
     v, i = forward(b, "C", "E")
