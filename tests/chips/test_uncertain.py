@@ -46,3 +46,21 @@ def test_a_pin_role_entry_settles_it(tmp_path):
 def test_board_never_given_roles_is_all_unknown():
     b = Board("b", (Part("U1", "X", ("A", "B"), model="Z"),))
     assert set(uncertain_nets(b)) == {"A", "B"}
+
+
+def test_judge_reasons_say_the_verdict_rests_on_guessed_roles(tmp_path):
+    from incircuit.judge import judge
+    from incircuit.predict import predict
+    from incircuit.tester.profile import load_profile
+
+    parts = (Part("U1", "X", ("SIG", "+5V", "GND"), model="MYSTERY"),
+             Part("R1", "R", ("SIG", "OUT"), 10e3), Part("R2", "R", ("OUT", "GND"), 10e3))
+    profile = load_profile()
+    guessed = apply_pin_roles(Board("b", parts))
+    verdict = judge(guessed, "R2", predict(guessed, "R2", profile=profile), profile)
+    assert any("U1 pin 3 (MYSTERY): ground guessed from net GND" in r for r in verdict.reasons)
+    p = tmp_path / "r.toml"
+    p.write_text('[subckt.MYSTERY]\npins = ["input", "supply", "ground"]\n')
+    known = apply_pin_roles(Board("b", parts), [str(p)])
+    verdict = judge(known, "R2", predict(known, "R2", profile=profile), profile)
+    assert not any(r.startswith("uncertain") for r in verdict.reasons)
