@@ -107,6 +107,9 @@ class AnalyticSession:
         for j, (a, k, _, _) in enumerate(net.junctions):
             self._D[j, a] += 1.0
             self._D[j, k] -= 1.0
+        self._Wj = np.vstack((self._D, -self._D))
+        self._lo = [np.concatenate(([-np.inf], c.knots_v)) for c in self._curves]
+        self._hi = [np.concatenate((c.knots_v, [np.inf])) for c in self._curves]
         # controlled sources (transistor action, see .active): gain times a
         # junction's chord current, from one net to another
         ctrl = net.controlled
@@ -217,30 +220,29 @@ class AnalyticSession:
             bdrive[idx] += src.volts / r
         return tuple(key), gdrive, bdrive
 
-    def _events(self, watch: Watch | None) -> tuple[np.ndarray, np.ndarray, list]:
-        """Event rows ``W x - level`` (fire when >= 0) and what each one means."""
-        n = len(self.network.nets)
-        rows, levels, what = [], [], []
+    def _events(self, watch: Watch | None) -> tuple:
+        """Event functions ``W x - level`` (fire when >= 0) for the current segments.
+
+        Rows: the watch (if any), then each junction's upper knot, then each
+        junction's lower knot (an infinite level never fires). Returns the
+        combination of the trajectory's modes, ``offset`` (1 with a watch)
+        and the rows' matrix ``W``.
+        """
+        nj = len(self._curves)
+        seg = self._seg
+        hi = np.array([self._hi[j][s] for j, s in enumerate(seg)]) + EPS_V
+        lo = np.array([self._lo[j][s] for j, s in enumerate(seg)]) - EPS_V
+        levels = np.concatenate((hi, -lo))
+        W = self._Wj
         if watch is not None:
-            w = np.zeros(n)
+            w = np.zeros(len(self.network.nets))
             w[self.network.probes[watch.probe]] += 1.0
             if watch.minus is not None:
                 w[self.network.probes[watch.minus]] -= 1.0
             sign = 1.0 if watch.rising else -1.0
-            rows.append(sign * w)
-            levels.append(sign * watch.level)
-            what.append(("watch", 0))
-        for j, (c, s) in enumerate(zip(self._curves, self._seg)):
-            lo, hi = c.bounds(s)
-            if math.isfinite(hi):
-                rows.append(self._D[j])
-                levels.append(hi + EPS_V)
-                what.append(("junction", j, 1))
-            if math.isfinite(lo):
-                rows.append(-self._D[j])
-                levels.append(-(lo - EPS_V))
-                what.append(("junction", j, -1))
-        return np.array(rows).reshape(len(rows), n), np.array(levels), what
+            W = np.vstack((sign * w, W)) if nj else (sign * w)[None, :]
+            levels = np.concatenate(([sign * watch.level], levels))
+        return W, levels, int(watch is not None)
 
     def run(
         self,
@@ -267,9 +269,9 @@ class AnalyticSession:
         while True:
             dec = self._decomposition(dkey, gdrive)
             traj = dec.start(self._x, self._i, self._rhs(bdrive))
-            W, levels, what = self._events(watch)
+            W, levels, offset = self._events(watch)
             remaining = duration - t
-            ev = first_event(traj.combo(W, levels, remaining), remaining, traj.rates) if len(what) else None
+            ev = first_event(traj.combo(W, levels, remaining), remaining, traj.rates) if len(levels) else None
             span = remaining if ev is None else ev[0]
             end = duration if ev is None else t + span
             mask = ~filled & (ts <= end) & (ts >= t)
@@ -280,11 +282,12 @@ class AnalyticSession:
             t = end
             if ev is None:
                 break
-            kind = what[ev[1]]
-            if kind[0] == "watch":
+            k = ev[1] - offset
+            if k < 0:
                 crossed = True
                 break
-            self._seg[kind[1]] += kind[2]
+            nj = len(self._curves)
+            self._seg[k % nj] += 1 if k < nj else -1
             switches += 1
             if switches > MAX_EVENTS:
                 raise EngineError("too many junction switches in one step", "try the ngspice engine")

@@ -38,6 +38,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import Mapping
 
 import numpy as np
@@ -122,9 +123,12 @@ def _from_knots(v: list[float], i: list[float], g_left: float) -> Curve:
     # I = g V + i0 through the knot at each segment's left end (right end for s=0)
     anchor = np.concatenate(([0], np.arange(len(kv))))
     i0 = ki[anchor] - g * kv[anchor]
+    for arr in (kv, ki, g, i0):
+        arr.flags.writeable = False  # shared through the cache
     return Curve(kv, ki, g, i0)
 
 
+@lru_cache(maxsize=4096)
 def junction_curve(
     is_: float,
     n: float = 1.0,
@@ -141,7 +145,8 @@ def junction_curve(
     Parameters are SPICE's diode parameters: saturation current ``is_`` (A),
     emission coefficient ``n``, series resistance ``rs`` (ohm), reverse
     breakdown voltage ``bv`` (V, inf for none) and the current ``ibv`` (A)
-    at ``-bv``.
+    at ``-bv``. Curves are cached by their parameters and must not be
+    modified.
     """
     if not (is_ > 0 and n > 0 and rs >= 0):
         raise ValueError(f"bad junction parameters is={is_} n={n} rs={rs}")

@@ -395,28 +395,35 @@ def first_event(combo, t_end: float, rates: np.ndarray) -> tuple[float, int] | N
     """Earliest ``t`` in ``[0, t_end]`` where a row of ``combo`` reaches 0 from below.
 
     A row already at or above 0 at ``t = 0`` fires at once. Crossings are
-    bracketed on :func:`time_grid` and refined with ``brentq``.
+    bracketed on :func:`time_grid` and refined with ``brentq``. A row that
+    touches 0 only by rounding (the scalar re-evaluation disagrees with the
+    grid) is passed over in that interval.
     """
     grid = time_grid(rates, t_end)
     vals = combo(grid)
     if vals.size == 0:
         return None
     hit = vals >= 0
-    first = np.flatnonzero(hit.any(axis=1))
-    if not len(first):
-        return None
-    g = first[0]
-    rows = np.flatnonzero(hit[g])
-    if g == 0:
-        return 0.0, int(rows[0])
-    a, b = grid[g - 1], grid[g]
-    best: tuple[float, int] | None = None
-    for k in rows:
-        f = combo.row(int(k))
-        t = brentq(f, a, b, xtol=max(b * 1e-13, 1e-300), rtol=1e-13)
-        # the root may sit a hair before the crossing; step to the side where f >= 0
-        if f(t) < 0:
-            t = min(b, t + max(abs(t) * 1e-13, 1e-300))
-        if best is None or t < best[0]:
-            best = (t, int(k))
-    return best
+    for g in np.flatnonzero(hit.any(axis=1)):
+        rows = np.flatnonzero(hit[g])
+        if g == 0:
+            return 0.0, int(rows[0])
+        a, b = grid[g - 1], grid[g]
+        best: tuple[float, int] | None = None
+        for k in rows:
+            f = combo.row(int(k))
+            fa, fb = f(a), f(b)
+            if fb < 0:
+                continue
+            if fa >= 0:
+                t = a
+            else:
+                t = brentq(f, a, b, xtol=max(b * 1e-13, 1e-300), rtol=1e-13)
+                # the root may sit a hair before the crossing; step to where f >= 0
+                if f(t) < 0:
+                    t = min(b, t + max(abs(t) * 1e-13, 1e-300))
+            if best is None or t < best[0]:
+                best = (t, int(k))
+        if best is not None:
+            return best
+    return None
