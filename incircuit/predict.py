@@ -28,6 +28,7 @@ from .model import Board, Reading
 from .tester.bench import StepRecord
 from .tester.identify import run_identification
 from .tester.profile import Profile, load_profile
+from .tester.three_terminal import analytic_limits, run_three_terminal
 
 __all__ = [
     "StepRecord",
@@ -38,7 +39,11 @@ __all__ = [
     "predict_between",
     "default_probes",
     "reading_dict",
+    "THREE_TERMINAL",
 ]
+
+#: Part kinds probed with three probes by default.
+THREE_TERMINAL = ("Q", "M", "J")
 
 
 @dataclass(frozen=True)
@@ -131,11 +136,12 @@ class Prediction:
 
 
 def default_probes(board: Board, part: str) -> tuple[str, ...]:
-    """The part's pin nets in pin order (probe 1 on the first pin)."""
+    """The part's pin nets in pin order (probe 1 on the first pin); a
+    transistor's first three (C B E, D G S: not its substrate or bulk)."""
     found = _part(board, part)
     if not found.pins:
         raise InputError(f"part {found.name} has no pins to probe", board.path)
-    return tuple(found.pins)
+    return tuple(found.pins[:3] if found.kind in THREE_TERMINAL else found.pins)
 
 
 def _part(board: Board, name: str):
@@ -163,11 +169,16 @@ def identify(board: Board, probe_nets: Sequence[str], profile: Profile | None = 
     board cannot be simulated.
     """
     nets = _check_nets(board, probe_nets)
-    if len(nets) != 2:
-        raise EngineError(f"identification with {len(nets)} probes is not modelled yet",
-                          hint="probe two of its nets, e.g. with --between NET NET")
+    if len(nets) not in (2, 3):
+        raise EngineError(f"identification with {len(nets)} probes is not modelled",
+                          hint="probe two or three nets")
     profile = profile or load_profile()
     session = get_engine(engine).open(board, nets, profile.port_stray_farads)
+    if len(nets) == 3:
+        reading, steps = run_three_terminal(session, profile, trace_points)
+        if engine == "analytic":
+            reading = analytic_limits(board, reading, steps)
+        return Run(reading, steps)
     reading, steps = run_identification(session, profile, trace_points)
     return Run(reading, steps)
 

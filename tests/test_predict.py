@@ -92,10 +92,23 @@ def test_bad_names_are_input_errors():
         identify(_pair(), ("A", "B"), engine="abacus")
 
 
-def test_three_probes_are_not_identified_yet():
+def test_four_probes_are_not_modelled():
+    board = _pair().with_part(Part("R3", "R", ("B", "C"), 1e3)).with_part(Part("R4", "R", ("C", "D"), 1e3))
     with pytest.raises(EngineError) as info:
-        identify(_pair().with_part(Part("R3", "R", ("B", "C"), 1e3)), ("A", "B", "C"))
-    assert "--between" in info.value.hint
+        identify(board, ("A", "B", "C", "D"))
+    assert "three" in info.value.hint
+
+
+def test_a_transistor_gets_three_probes(board_file):
+    # Q1 (C B E) on nets A B 0; alone it reads hFE = BF (Ebers-Moll, Sze ch. 5)
+    from incircuit.netlist import load
+    board = load(board_file)
+    assert default_probes(board, "Q1") == ("A", "B", "0")
+    pred = predict(board, "Q1", trace_points=0)
+    iso = pred.isolated.reading
+    assert iso.kind == "bjt-npn" and iso.extra["pins"] == {"B": 2, "C": 1, "E": 3}
+    # 1 % ADC quantisation of the collector and base currents (10-bit, common practice)
+    assert iso.value == pytest.approx(100.0, rel=0.01)
 
 
 def test_steps_and_trace_share_one_time_axis():
@@ -148,7 +161,7 @@ def test_cli_probes_option(board_file, capsys):
 @pytest.mark.parametrize("argv,words", [
     (["R9"], "no part 'R9'"),
     (["--between", "A", "ZZ"], "no net 'ZZ'"),
-    (["R1", "--probes", "A"], "write two nets"),
+    (["R1", "--probes", "A"], "write two or three nets"),
     (["R1", "--between", "A", "B"], "one of them"),
 ])
 def test_cli_bad_input_exits_2_with_one_line(board_file, capsys, argv, words):
@@ -165,7 +178,10 @@ def test_cli_bad_profile_names_file_and_line(board_file, tmp_path, capsys):
     assert len(err.splitlines()) == 1 and f"{bad}:4:" in err
 
 
-def test_cli_engine_error_exits_1_with_hint(board_file, capsys):
+def test_cli_engine_error_exits_1_with_hint(board_file, capsys, monkeypatch):
+    def failing(*args, **kwargs):
+        raise EngineError("junction states did not settle", "try the ngspice engine")
+    monkeypatch.setattr("incircuit.commands.predict.predict", failing)
     assert main(["predict", board_file, "Q1"]) == 1
     err = capsys.readouterr().err.strip()
-    assert len(err.splitlines()) == 1 and err.startswith("incircuit: Q1:") and "--between" in err
+    assert len(err.splitlines()) == 1 and err.startswith("incircuit: Q1:") and "ngspice" in err

@@ -1,9 +1,10 @@
 """Predict what the tester reads on a part: alone, in circuit, and the difference.
 
 ``incircuit predict BOARD PART`` simulates the tester's identification run
-with probe 1 on the part's first pin and probe 2 on its second, once on the
-part alone and once on the whole board, and prints both readings and how
-far the in-circuit one is off (in %, or "kind changes").
+with probe 1 on the part's first pin and probe 2 on its second (a
+transistor gets three probes, on C B E or D G S), once on the part alone
+and once on the whole board, and prints both readings and how far the
+in-circuit one is off (in %, or "kind changes").
 ``incircuit predict BOARD --between NET_A NET_B`` predicts the reading with
 the probes on two nets. BOARD is a netlist file or a demo board name.
 
@@ -43,6 +44,10 @@ EXTRA_TEXT = {
     "junction_capacitance": ("junction C", "F"),
     "dc_resistance": ("DC resistance", "ohm"),
     "reverse_ohms": ("reverse", "ohm"),
+    "vbe": ("Vbe", "V"),
+    "gate_capacitance": ("gate C", "F"),
+    "body_diode": ("body diode", "V"),
+    "gate_junction": ("gate junction", "V"),
 }
 
 
@@ -50,8 +55,9 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("board", metavar="BOARD",
                         help="SPICE netlist of the board, or a demo board name (e.g. power-stage)")
     parser.add_argument("part", metavar="PART", nargs="?", help="the part to predict (e.g. C12)")
-    parser.add_argument("--probes", metavar="NET,NET",
-                        help="nets of probe 1 and probe 2 (default: the part's pins in order)")
+    parser.add_argument("--probes", metavar="NET,NET[,NET]",
+                        help="nets of probes 1, 2 (and 3) (default: the part's pins in order; "
+                             "three for a transistor)")
     parser.add_argument("--between", nargs=2, metavar=("NET_A", "NET_B"),
                         help="predict the reading between two nets instead of on a part")
     parser.add_argument("--tester", metavar="FILE",
@@ -72,8 +78,8 @@ def run(args: argparse.Namespace) -> int:
     probes = None
     if args.probes:
         probes = [n.strip() for n in args.probes.split(",")]
-        if len(probes) != 2 or not all(probes):
-            raise InputError(f"--probes {args.probes!r}: write two nets as NET,NET")
+        if len(probes) not in (2, 3) or not all(probes):
+            raise InputError(f"--probes {args.probes!r}: write two or three nets as NET,NET[,NET]")
     try:
         if args.between:
             found = predict_between(board, *args.between, profile=profile, engine=args.engine)
@@ -95,7 +101,9 @@ def run(args: argparse.Namespace) -> int:
 def reading_text(reading: Reading, profile: Profile | None = None) -> str:
     """One line: kind, value with its stated uncertainty, and the extras."""
     text = reading.kind
-    if reading.value is not None:
+    if reading.value is not None and reading.unit == "1":
+        text += f" hFE {reading.value:.0f}"
+    elif reading.value is not None:
         text += f" {format_value(reading.value, reading.unit)}"
         if profile is not None and profile.accuracy(reading) > 0:
             text += f" (+-{format_value(profile.accuracy(reading), reading.unit)})"
@@ -106,6 +114,11 @@ def reading_text(reading: Reading, profile: Profile | None = None) -> str:
             shown.append(f"{label} {value * 100:.1f} %" if unit == "%" else f"{label} {format_value(value, unit)}")
     if "anode" in reading.extra:
         shown.append(f"anode on probe {reading.extra['anode']}")
+    pins = reading.extra.get("pins")
+    if isinstance(pins, dict) and pins:
+        shown.append("pins " + " ".join(f"{pin}={probe}" for pin, probe in pins.items()))
+    if "probes" in reading.extra:
+        shown.append("between probes " + ",".join(str(p) for p in reading.extra["probes"]))
     if "reason" in reading.extra:
         shown.append(str(reading.extra["reason"]))
     return text + (f"; {', '.join(shown)}" if shown else "")
