@@ -1,7 +1,8 @@
 """Lift plans: which single leg to lift so the reading judges the part.
 
 A candidate is one leg: a leg of the part itself (its probes then go on the
-lifted leg, i.e. on the part's own pins), or one leg of a neighbour on a
+lifted leg, i.e. on the part's own pins; pins of the part on one net are one
+leg), or one leg of a neighbour on a
 path beside the part (the probes stay where they were). Each candidate is
 predicted again and ranked by the verdict it reaches (reliable, then
 predictable, then masked), then by simplicity (the part's own leg before a
@@ -24,7 +25,7 @@ the first probe's side; lifting it breaks that path.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Sequence
 
 from ..graph import between
@@ -48,8 +49,17 @@ class LiftAction:
         return f"lift {self.part} leg {self.pin} (off net {self.net})"
 
     def apply(self, board: Board, probes: Sequence[str]) -> tuple[Board, tuple[str, ...]]:
-        """The changed board and the probe nets to use on it."""
+        """The changed board and the probe nets to use on it.
+
+        Every pin of the part on the same net goes with the leg: one package
+        leg carries them all (a MOSFET's bulk pin on its source).
+        """
         lifted = board.lifted(self.part, self.pin)
+        part = lifted.part(self.part)
+        leg = part.pins[self.pin - 1]
+        tied = [leg if old == self.net else new for old, new in zip(board.part(self.part).pins, part.pins)]
+        if tuple(tied) != part.pins:
+            lifted = lifted.with_part(replace(part, pins=tuple(tied)))
         if not self.own:
             return lifted, tuple(probes)
         new_net = lifted.part(self.part).pins[self.pin - 1]
@@ -90,7 +100,7 @@ def lift_candidates(board: Board, part: str, probes: Sequence[str],
                     limit: int = MAX_NEIGHBOUR_PARTS) -> list[LiftAction]:
     """Every single-leg lift worth predicting, own legs first."""
     p = board.part(part)
-    out = [LiftAction(p.name, i + 1, net, True) for i, net in enumerate(p.pins)]
+    out = [LiftAction(p.name, i + 1, net, True) for i, net in enumerate(p.pins) if net not in p.pins[:i]]
     for name, net in neighbour_parts(board, p.name, probes, limit):
         pin = _pin_on(board, name, net)
         if pin is not None:
