@@ -22,6 +22,8 @@ COMMANDS = {
     "show": "summarise a board, or list the paths around one part",
     "predict": "predict the tester's reading on a part, alone and in circuit",
     "diagnose": "judge a reading you got on a part: desolder it, leave it, or look elsewhere",
+    "survey": "survey a whole board: which parts can be checked in place, and what would help",
+    "demo": "survey the embedded demo board and write its report into ./incircuit-demo/",
 }
 
 

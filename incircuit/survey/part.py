@@ -1,0 +1,253 @@
+"""One part of a survey: prediction, healthy band, judgement, remedy, traces.
+
+:func:`survey_part` never raises for a failure inside the part's own work:
+an :class:`~incircuit.errors.EngineError` or any other exception becomes a
+record with ``status`` "error" (message, hint) and whatever was found
+before it. A part the tester model cannot read yet (three or more probe
+nets, no pins) is recorded as "unsupported".
+
+The record (one row of survey.json) is the prediction's dict merged with
+the judgement's dict, plus:
+
+``kind``, ``pins``, ``value``, ``unit``, ``tolerance``, ``location``
+    the part as the netlist gives it;
+``status``, ``error``
+    "ok", "error" or "unsupported"; ``{"type", "message", "hint"}`` or None;
+``band``
+    the healthy band of the reading, flattened for the expected-readings
+    sheet: ``{"source", "kind", "unit", "low", "high", "median", "samples",
+    "text"}`` ("monte-carlo" or "tolerance");
+``faults_detectable``, ``faults_total``
+    counts of the usual faults that show in circuit;
+``remedy``
+    the designer's change for a masked part (:mod:`.remedy`);
+``uncertain``
+    reasons the reading rests on guessed pin roles.
+"""
+
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass, field
+from typing import Mapping, Sequence
+
+import numpy as np
+
+from ..bands import Band, healthy_band
+from ..chips import uncertainty_reasons
+from ..errors import EngineError
+from ..judge import judge
+from ..model import Board, Part
+from ..predict import Prediction, Run, predict
+from .remedy import remedy_for
+from .settings import TRACE_POINTS, Settings
+
+__all__ = ["PartResult", "survey_part", "probes_of", "band_for", "base_record", "STATUSES",
+           "VERDICT_ORDER", "plain"]
+
+#: Record statuses.
+STATUSES = ("ok", "error", "unsupported")
+#: Every value the ``verdict`` column can take, in report order.
+VERDICT_ORDER = ("reliable", "predictable", "masked", "error", "unsupported")
+
+_UNITS = {"R": "ohm", "C": "F", "L": "H", "K": "1"}
+
+
+@dataclass
+class PartResult:
+    """A part's record (plain JSON-ready data) and its waveforms for the plots."""
+
+    record: dict
+    traces: dict = field(default_factory=dict)
+
+
+def plain(value: object) -> object:
+    """``value`` as plain JSON data: numpy scalars unwrapped, non-finite floats None,
+    mappings and sequences copied."""
+    if isinstance(value, (np.floating, np.integer)):
+        value = value.item()
+    if isinstance(value, float):
+        return value if np.isfinite(value) else None
+    if isinstance(value, Mapping):
+        return {str(k): plain(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [plain(v) for v in value]
+    if isinstance(value, (str, int, bool)) or value is None:
+        return value
+    return str(value)
+
+
+def probes_of(part: Part) -> tuple[str, ...] | None:
+    """The probe nets the survey uses on ``part``: its pins in order, or
+    None when there is nothing to probe (fewer than two distinct nets)."""
+    nets = tuple(part.pins)
+    if len(set(nets)) < 2:
+        return None
+    return nets
+
+
+def _unsupported(record: dict, part: Part, error: EngineError | None) -> None:
+    record["status"] = record["verdict"] = "unsupported"
+    if error is not None:
+        message, hint = f"not yet supported: {error.message}", error.hint
+    elif part.kind == "X":
+        message = (f"{part.name} is an unmodelled part ({part.model or 'no subcircuit'}): there is no "
+                   "reading of it alone to compare with; its pins show in the readings of the parts "
+                   "around it")
+        hint = "test the chip itself by its function, or give it a subcircuit model"
+    elif not part.pins:
+        message, hint = f"not yet supported: {part.name} has no pins of its own to probe", ""
+    else:
+        message, hint = f"nothing to probe: every pin of {part.name} is on net {part.pins[0]}", ""
+    record["error"] = {"type": "Unsupported", "message": message, "hint": hint}
+
+
+def base_record(part: Part, engine: str) -> dict:
+    """The fields every record has, whatever happened to the part."""
+    tol = part.tolerance
+    return {
+        "part": part.name,
+        "kind": part.kind,
+        "pins": list(part.pins),
+        "value": plain(part.value),
+        "unit": _UNITS.get(part.kind),
+        "model": part.model,
+        "tolerance": ({"minus": tol.minus, "plus": tol.plus, "origin": tol.origin}
+                      if tol is not None else None),
+        "location": (f"{os.path.basename(part.location.path)}:{part.location.line}"
+                     if part.location else None),
+        "status": "ok",
+        "error": None,
+        "probes": list(part.pins),
+        "engine": engine,
+        "isolated": None,
+        "in_circuit": None,
+        "verdict": None,
+        "sensitivity": None,
+        "reasons": [],
+        "faults": [],
+        "faults_detectable": 0,
+        "faults_total": 0,
+        "band": None,
+        "lift": [],
+        "advice": [],
+        "advice_text": [],
+        "remedy": None,
+        "uncertain": [],
+    }
+
+
+def band_for(board: Board, probes: Sequence[str], profile, settings: Settings) -> Band:
+    """The Monte Carlo healthy band of ``probes`` at the survey's depth.
+
+    Runs in the calling process (the survey spreads bands over its own
+    worker processes).
+    """
+    return healthy_band(board, probes, profile, settings.engine, samples=settings.band_samples,
+                        seed=settings.seed, workers=1)
+
+
+def _flat_band(band: object, reading: Mapping | None) -> dict | None:
+    """The band as ``{"source", "kind", "unit", "low", "high", "median", "samples", "text"}``."""
+    describe = getattr(band, "describe", None)
+    text = describe() if callable(describe) else str(band)
+    if isinstance(band, Band):
+        return plain({"source": "monte-carlo", "kind": band.kind, "unit": band.unit,
+                      "low": band.low, "high": band.high, "median": band.median,
+                      "kind_fraction": band.kind_fraction, "samples": band.samples, "text": text})
+    ranges = getattr(band, "ranges", None)
+    if not isinstance(ranges, Mapping) or not ranges:
+        return None
+    kind = reading.get("kind") if reading else None
+    if kind not in ranges:
+        kind = next(iter(ranges))
+    rng = ranges[kind]
+    margin = float(getattr(band, "margin", 0.0))
+    low = high = None
+    if rng is not None:
+        low, high = rng[0] - margin * abs(rng[0]), rng[1] + margin * abs(rng[1])
+    units = getattr(band, "units", None) or {}
+    median = reading.get("value") if reading and reading.get("kind") == kind else None
+    return plain({"source": "tolerance", "kind": kind, "unit": units.get(kind), "low": low,
+                  "high": high, "median": median, "kind_fraction": None, "samples": None,
+                  "text": text})
+
+
+def _trace(run: Run | None) -> list[dict] | None:
+    """The run's waveforms, step by step: ``name``, ``duration`` (s), ``x``
+    (sample times as fractions of the step) and ``v`` (probe volts, one row
+    per sample), ending with the step's final voltages."""
+    if run is None:
+        return None
+    out = []
+    for step in run.steps:
+        duration = float(step.result.duration)
+        rel = np.asarray(step.sample_times, dtype=float)
+        rows = np.asarray(step.result.samples, dtype=float).reshape(len(rel), -1) if len(rel) else \
+            np.zeros((0, len(step.result.volts)))
+        keep = (rel <= duration * (1 + 1e-9)) & np.all(np.isfinite(rows), axis=1)
+        x = np.append(rel[keep] / duration if duration > 0 else rel[keep] * 0.0, 1.0)
+        v = np.vstack([rows[keep], np.asarray(step.result.volts, dtype=float).reshape(1, -1)])
+        out.append({"name": step.name, "duration": duration, "x": x, "v": v})
+    return out
+
+
+def _error(record: dict, error: BaseException) -> None:
+    record["status"] = "error"
+    record["verdict"] = "error"
+    hint = getattr(error, "hint", "") or ""
+    if not hint and not isinstance(error, EngineError):
+        hint = "an internal error in this part's work; the other parts are not affected"
+    record["error"] = {"type": type(error).__name__,
+                       "message": getattr(error, "message", None) or str(error), "hint": hint}
+
+
+def survey_part(board: Board, name: str, profile, settings: Settings,
+                band: Band | BaseException | None = None) -> PartResult:
+    """Predict, judge and find a remedy for part ``name``.
+
+    ``band`` is the Monte Carlo band of the part's probes (None: the
+    judge's tolerance band; an exception: the band failed, the tolerance
+    band is used and the failure is named in the reasons).
+    """
+    part = board.part(name)
+    record = base_record(part, settings.engine)
+    result = PartResult(record)
+    probes = probes_of(part)
+    if probes is None or part.kind == "X":
+        _unsupported(record, part, None)
+        return result
+    try:
+        try:
+            prediction: Prediction = predict(board, part.name, probes, profile, settings.engine,
+                                             trace_points=TRACE_POINTS if settings.plots else 0)
+        except EngineError as error:
+            if len(probes) > 2:  # the tester model does not read this many probes yet
+                _unsupported(record, part, error)
+                return result
+            raise
+        record.update(plain(prediction.to_dict()))  # type: ignore[arg-type]
+        if settings.plots:
+            result.traces = {"isolated": _trace(prediction.isolated),
+                             "in_circuit": _trace(prediction.in_circuit)}
+        use_band = band if isinstance(band, Band) else None
+        judgement = judge(board, part.name, prediction, profile, settings.engine, probes,
+                          band=use_band)
+        found = plain(judgement.to_dict())
+        assert isinstance(found, dict)
+        cost = found.get("cost") or {}
+        cost.pop("seconds", None)  # wall time would make the same inputs give different files
+        record.update(found)
+        if isinstance(band, BaseException):
+            record["reasons"].append(
+                f"the Monte Carlo band of {' - '.join(probes)} failed ({band}); faults are judged "
+                f"against {part.name}'s tolerance band instead")
+        record["band"] = _flat_band(judgement.band, record["in_circuit"])
+        record["faults_total"] = len(record["faults"])
+        record["faults_detectable"] = sum(bool(f.get("detectable")) for f in record["faults"])
+        record["uncertain"] = uncertainty_reasons(board, probes)
+        record["reasons"] += [r for r in record["uncertain"] if r not in record["reasons"]]
+        record["remedy"] = remedy_for(board, part.name, probes, record)
+    except Exception as error:  # one part's failure must not stop the survey
+        _error(record, error)
+    return result
