@@ -1,0 +1,111 @@
+"""Time per prediction (isolated + in-circuit identification) on real-sized boards.
+
+Prints, per board, the median, 90th percentile and worst wall time of
+``predict(board, part)`` over its two-terminal parts (R, C, L, D), how many
+failed with an EngineError, and the mean engine steps per run. Boards: the
+demo netlists (``netlists/*.cir`` with their pin-role files) and a generated
+500-part board (a seeded random mesh of resistors, capacitors, inductors
+and diodes). Goal: median under 50 ms per part on a 2-core machine.
+
+Usage: python benchmarks/bench_predict.py [--parts N] [--trace-points K] [--engine NAME]
+"""
+
+from __future__ import annotations
+
+import argparse
+import random
+import statistics
+import sys
+import time
+from pathlib import Path
+
+from incircuit.chips import apply_pin_roles
+from incircuit.errors import EngineError
+from incircuit.model import Board, Model, Part
+from incircuit.netlist import load
+from incircuit.predict import predict
+
+GOAL_MS = 50.0
+ROOT = Path(__file__).resolve().parents[1]
+
+
+def demo_boards() -> list[Board]:
+    boards = []
+    for path in sorted((ROOT / "netlists").glob("*.cir")):
+        pins = path.with_suffix(".pins.toml")
+        board = load(str(path))
+        boards.append(apply_pin_roles(board, [str(pins)] if pins.is_file() else [], {}))
+    return boards
+
+
+def generated_board(n_parts: int = 500, seed: int = 7) -> Board:
+    """A seeded random mesh: mostly resistors and capacitors, some inductors and diodes."""
+    rng = random.Random(seed)
+    n_nets = n_parts // 3
+    nets = ["0"] + [f"N{i}" for i in range(1, n_nets)]
+    parts = []
+    e6 = (1.0, 1.5, 2.2, 3.3, 4.7, 6.8)
+    for i in range(n_parts):
+        a = nets[rng.randrange(n_nets)] if i >= n_nets - 1 else nets[i]
+        b = nets[rng.randrange(n_nets)] if i >= n_nets - 1 else nets[i + 1]
+        if a == b:
+            b = nets[(nets.index(a) + 1) % n_nets]
+        roll = rng.random()
+        if roll < 0.5:
+            parts.append(Part(f"R{i}", "R", (a, b), rng.choice(e6) * 10.0 ** rng.randint(1, 6)))
+        elif roll < 0.85:
+            parts.append(Part(f"C{i}", "C", (a, b), rng.choice(e6) * 10.0 ** rng.randint(-11, -4)))
+        elif roll < 0.92:
+            parts.append(Part(f"L{i}", "L", (a, b), rng.choice(e6) * 10.0 ** rng.randint(-5, -2),
+                              params={"dcr": rng.choice(e6)}))
+        else:
+            parts.append(Part(f"D{i}", "D", (a, b), model="DGEN"))
+    models = {"DGEN": Model("DGEN", "D", {"is": 2.52e-9, "n": 1.752, "rs": 0.568})}
+    return Board(f"generated {n_parts}-part mesh", tuple(parts), models)
+
+
+def bench(board: Board, limit: int | None, trace_points: int, engine: str) -> None:
+    parts = [p for p in board.parts if p.kind in "RCLD" and len(set(p.pins)) == 2]
+    if limit is not None and len(parts) > limit:
+        parts = random.Random(1).sample(parts, limit)
+    times, steps, failed, broken = [], [], [], []
+    for part in parts:
+        t0 = time.perf_counter()
+        try:
+            pred = predict(board, part.name, engine=engine, trace_points=trace_points)
+        except EngineError as error:
+            failed.append(f"{part.name}: {error.message}")
+            continue
+        except Exception as error:  # an internal error: reported, the other parts go on
+            broken.append(f"{part.name}: {type(error).__name__}: {error}")
+            continue
+        finally:
+            times.append(time.perf_counter() - t0)
+        steps.append(len(pred.in_circuit.steps) + len(pred.isolated.steps))
+    times_ms = sorted(t * 1e3 for t in times)
+    p90 = times_ms[int(0.9 * (len(times_ms) - 1))]
+    flag = "ok" if statistics.median(times_ms) < GOAL_MS else "over goal"
+    print(f"{board.name[:48]:48s} {len(board.parts):4d} parts, {len(parts):3d} predicted: "
+          f"median {statistics.median(times_ms):7.1f} ms  p90 {p90:7.1f} ms  max {times_ms[-1]:8.1f} ms  "
+          f"steps/prediction {statistics.mean(steps) if steps else 0:5.1f}  engine errors {len(failed)}  "
+          f"internal errors {len(broken)}  [{flag}]")
+    for line in failed + broken:
+        print(f"    {line}")
+    sys.stdout.flush()
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--parts", type=int, default=60, help="parts predicted per board at most (default 60)")
+    parser.add_argument("--trace-points", type=int, default=0, help="trace samples per step (default 0)")
+    parser.add_argument("--engine", default="analytic")
+    args = parser.parse_args(argv)
+    print(f"predict(): isolated + in-circuit run per part; engine {args.engine}, "
+          f"trace points {args.trace_points}; goal median < {GOAL_MS:g} ms")
+    for board in [*demo_boards(), generated_board()]:
+        bench(board, args.parts, args.trace_points, args.engine)
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
