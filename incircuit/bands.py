@@ -1,7 +1,7 @@
 """Healthy bands: what good boards read, by Monte Carlo over the tolerances.
 
-Every R, C and L in the probed part of the board (the parts joined to the
-probed nets, see :func:`varied_parts`) takes a value drawn independently
+Every R, C and L that can carry current between the probed nets (see
+:func:`piece_parts`) takes a value drawn independently
 and **uniformly** between its tolerance limits ``value * (1 - minus)`` and
 ``value * (1 + plus)``; the instrument then adds a reading error drawn
 uniformly within ``± Profile.accuracy(reading)``. Uniform (rectangular) is
@@ -35,8 +35,10 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
+from itertools import combinations
 from typing import Callable, Iterable, Mapping, Sequence
 
+import networkx as nx
 import numpy as np
 
 from .errors import EngineError
@@ -223,41 +225,42 @@ def monte_carlo(func: Callable[[np.ndarray], np.ndarray], nominal: Sequence[floa
     return np.asarray(func(values), dtype=float)
 
 
-def _component_nets(board: Board, nets: Iterable[str]) -> set[str]:
-    """Nets joined to ``nets`` through any part (inductive couplings count)."""
-    parent: dict[str, str] = {}
+def piece_parts(board: Board, probes: Sequence[str]) -> tuple[Part, ...]:
+    """The parts that can carry current between the probed nets.
 
-    def find(x: str) -> str:
-        parent.setdefault(x, x)
-        while parent[x] != x:
-            parent[x] = parent[parent[x]]
-            x = parent[x]
-        return x
-
+    The board is a graph of nets joined by parts (every pin pair of a part
+    with more pins; the windings of a coupling joined to each other); with
+    the probed nets joined as well, the parts inside the biconnected block
+    that holds the probes are the ones on some loop through the probes
+    (Hopcroft & Tarjan, "Efficient algorithms for graph manipulation",
+    CACM 16 (1973), via networkx). A part hanging off the block by a single
+    net carries no current between the probes (the board floats; only the
+    probed nets reach the tester).
+    """
+    nets = [n.upper() for n in probes]
+    g = nx.Graph()
     pins_of = {p.name: p.pins for p in board.parts}
     for p in board.parts:
-        groups = [p.pins]
+        pins = list(dict.fromkeys(p.pins))
         if p.kind == "K":
             names = [str(n).upper() for n in p.params.get("inductors", ())]  # type: ignore[union-attr]
-            groups = [tuple(n for name in names for n in pins_of.get(name, ()))]
-        for pins in groups:
-            for a in pins[1:]:
-                parent[find(a)] = find(pins[0])
-    roots = {find(n) for n in nets}
-    return {n for n in parent if find(n) in roots} | set(nets)
-
-
-def piece_parts(board: Board, probes: Sequence[str]) -> tuple[Part, ...]:
-    """The parts that share a connected piece of the board with the probed nets."""
-    nets = _component_nets(board, [n.upper() for n in probes])
-    inductors = {n for p in board.parts if p.kind == "K" and set(p.pins) & nets
-                 for n in p.params.get("inductors", ())}  # type: ignore[union-attr]
-    return tuple(p for p in board.parts if set(p.pins) & nets or p.name in inductors)
+            pins = list(dict.fromkeys(n for name in names for n in pins_of.get(name, ())))
+        g.add_edges_from(combinations(pins, 2))
+    g.add_edges_from(combinations(dict.fromkeys(nets), 2))
+    block = next((b for b in nx.biconnected_components(g) if set(nets) <= b), set(nets))
+    inductors = set()
+    for p in board.parts:
+        if p.kind == "K":
+            names = [str(n).upper() for n in p.params.get("inductors", ())]  # type: ignore[union-attr]
+            if all(len(set(pins_of.get(n, ())) & block) >= 2 for n in names):
+                inductors.update(names)
+    return tuple(p for p in board.parts
+                 if len(set(p.pins) & block) >= 2 or p.name in inductors)
 
 
 def varied_parts(board: Board, probes: Sequence[str]) -> tuple[Part, ...]:
-    """The R, C, L parts with a value and a tolerance that share a connected
-    piece of the board with the probed nets: only they move the reading."""
+    """The R, C, L parts of :func:`piece_parts` with a value and a
+    tolerance: only they move the reading."""
     return tuple(
         p for p in piece_parts(board, probes)
         if p.kind in ("R", "C", "L") and p.value is not None and p.tolerance is not None

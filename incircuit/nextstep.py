@@ -244,6 +244,11 @@ def next_step(board: Board, part: str, probes: tuple[str, ...], leaders: Sequenc
     for optimistic, cand, preds in found:
         if best is not None and optimistic <= best[0]:
             break
+        if preds[0].kind != preds[1].kind:  # settled by the kinds, no band needed
+            key = (min(KIND_SEPARATION, SEPARATION_ENOUGH), -_COST[cand.action])
+            if best is None or key > best[0]:
+                best = (key, cand, preds, KIND_SEPARATION)
+            continue
         reader = cand.reader or read
         acc = cand.accuracy or accuracy
         try:
