@@ -28,7 +28,7 @@ from .model import Board, Reading
 from .tester.bench import StepRecord
 from .tester.identify import run_identification
 from .tester.profile import Profile, load_profile
-from .tester.three_terminal import analytic_limits, run_three_terminal
+from .tester.three_terminal import analytic_limits, channel_probed, run_three_terminal
 
 __all__ = [
     "StepRecord",
@@ -173,6 +173,10 @@ def identify(board: Board, probe_nets: Sequence[str], profile: Profile | None = 
         raise EngineError(f"identification with {len(nets)} probes is not modelled",
                           hint="probe two or three nets")
     profile = profile or load_profile()
+    if len(nets) == 3 and engine == "analytic":
+        unread = channel_probed(board, nets)
+        if unread is not None:
+            return Run(unread, ())
     session = get_engine(engine).open(board, nets, profile.port_stray_farads)
     if len(nets) == 3:
         reading, steps = run_three_terminal(session, profile, trace_points)

@@ -19,14 +19,14 @@ base-collector junction on: ``Ic`` falls below ``BF Ib`` as ``Vce`` drops to
 a few tenths of a volt), reverse-active (``Ie = BR Ib``) and cut-off are
 simply the segment states of the two junctions; no extra state is needed.
 A PNP is the mirror image (junction anodes at emitter and collector,
-transport current E -> C). So the analytic engine reads ``hFE = BF``
-exactly in the forward-active region. Left out (the ngspice engine has
-them): the Early effect (``vaf``, ``var``: ``hFE`` grows by about
-``Vcb / VAF``), high injection (``ikf``, ``ikr``), base leakage (``ise``,
-``ne``, ``isc``, ``nc``: lowers ``hFE`` at small currents; the chords below
-1 uA are a decade apart, too coarse for it), transit times, and ``re``,
-``rc`` beyond their share in the junctions' series resistance (``rb + re``
-and ``rb + rc`` carry the base current only).
+transport current E -> C). ``rb``, ``re`` and ``rc`` are resistors to
+internal base, emitter and collector nodes (``"Q1~B"`` ...), as in SPICE.
+So the analytic engine reads ``hFE = BF`` exactly in the forward-active
+region. Left out (the ngspice engine has them): the Early effect (``vaf``,
+``var``: ``hFE`` grows by about ``Vcb / VAF``), high injection (``ikf``,
+``ikr``), base leakage (``ise``, ``ne``, ``isc``, ``nc``: lowers ``hFE`` at
+small currents; the chords below 1 uA are a decade apart, too coarse for
+it), transit times, and the bias dependence of ``rb``.
 
 MOSFET and JFET channels are *not* modelled by the analytic engine (their
 junctions and gate capacitances are, see :mod:`.branches`): an enhancement
@@ -92,9 +92,20 @@ def bjt_branches(br, e: Element) -> None:
     bf, brev = _p(mp, "bf", d["bf"]), _p(mp, "br", d["br"])
     if not (bf > 0 and brev > 0):
         raise ValueError(f"bf={bf} and br={brev} must be positive")
-    rb = _p(mp, "rb", 0.0) / area
-    be = junction_curve(is_ / bf, _p(mp, "nf", d["nf"]), rb + _p(mp, "re", 0.0) / area)
-    bc = junction_curve(is_ / brev, _p(mp, "nr", d["nr"]), rb + _p(mp, "rc", 0.0) / area)
+    # series resistances as resistors to internal nodes, as SPICE places them
+    for pin, key in ((1, "rb"), (2, "re"), (0, "rc")):
+        ohms = _p(mp, key, 0.0) / area
+        if ohms > 0:
+            inner = f"{e.name}~{'CBE'[pin]}"
+            br.resistors.append((e.nodes[pin], inner, 1.0 / ohms))
+            if pin == 1:
+                b = inner
+            elif pin == 2:
+                em = inner
+            else:
+                c = inner
+    be = junction_curve(is_ / bf, _p(mp, "nf", d["nf"]))
+    bc = junction_curve(is_ / brev, _p(mp, "nr", d["nr"]))
     # (anode, cathode) of each junction; the transport source runs (from, to)
     be_pins, bc_pins = ((em, b), (c, b)) if pnp else ((b, em), (b, c))
     fwd, rev = ((em, c), (c, em)) if pnp else ((c, em), (em, c))

@@ -45,7 +45,7 @@ from .pairs import identify_pair
 from .profile import Profile
 from .transistor import GAIN_MIN, Gain, Threshold, bjt_gain, enhancement_threshold, pinch_off
 
-__all__ = ["run_three_terminal", "analytic_limits", "TRANSISTOR_KINDS"]
+__all__ = ["run_three_terminal", "analytic_limits", "channel_probed", "TRANSISTOR_KINDS"]
 
 #: Reading kinds of three-terminal parts.
 TRANSISTOR_KINDS = ("bjt-npn", "bjt-pnp", "mosfet-n-enh", "mosfet-p-enh", "mosfet-n-dep",
@@ -66,6 +66,21 @@ def run_three_terminal(session: Session, profile: Profile, trace_points: int = 1
     except Undischargeable as error:
         reading = Reading("unreadable", extra={"reason": f"could not discharge the part ({error})"})
     return reading, tuple(bench.records)
+
+
+def channel_probed(board: Board, nets) -> Reading | None:
+    """"unreadable", needs ngspice, when the probes sit on the drain, gate
+    and source of a MOSFET or JFET: the analytic engine cannot show the
+    channel the identification is after (None otherwise)."""
+    probed = {str(n).upper() for n in nets}
+    for check in channel_checks(board):
+        if {check.drain, check.gate, check.source} <= probed and len({check.drain, check.gate, check.source}) == 3:
+            return Reading("unreadable", extra={
+                "needs": "ngspice",
+                "reason": f"the probes sit on {check.part}'s drain, gate and source: the analytic engine "
+                          "models no MOSFET or JFET channel (run with --engine ngspice)",
+            })
+    return None
 
 
 def analytic_limits(board: Board, reading: Reading, steps) -> Reading:

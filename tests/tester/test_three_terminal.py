@@ -125,6 +125,17 @@ def test_mosfet_on_the_analytic_engine_asks_for_ngspice():
     assert "M1" in reading.extra["reason"]
 
 
+def test_a_run_that_turns_a_channel_on_asks_for_ngspice():
+    # the source reached through a resistor: the probes are not on M1's three
+    # pins, but the steps charge its gate past vto with volts across the channel
+    model = Model("MN", "NMOS", {"vto": 2.0, "kp": 0.5, "is": 1e-14})
+    board = Board("t", (Part("M1", "M", ("D", "G", "S", "S"), model="MN"), Part("R1", "R", ("S", "X"), 1e3)),
+                  {"MN": model})
+    reading = identify(board, ("D", "G", "X"), trace_points=0).reading
+    assert reading.kind == "unreadable" and reading.extra["needs"] == "ngspice"
+    assert "past its threshold" in reading.extra["reason"]
+
+
 # -- ngspice: MOSFET and JFET channels ------------------------------------------------
 
 def mos_board(mtype: str, vto: float, *extra: Part) -> Board:
