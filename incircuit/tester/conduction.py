@@ -53,11 +53,14 @@ class Direction:
     high: int
     low: int
     at_low: Pulse
-    at_high: Pulse
+    #: None when the low-resistor pulse already showed stored charge.
+    at_high: Pulse | None
     kind: str
 
-    def apparent_ohms(self, pulse: Pulse) -> float:
-        return pulse.v_end / pulse.current if pulse.current > 0 else float("inf")
+    def apparent_ohms(self, pulse: Pulse | None) -> float:
+        if pulse is None or pulse.current <= 0:
+            return float("inf")
+        return pulse.v_end / pulse.current
 
 
 class Undischargeable(Exception):
@@ -164,9 +167,15 @@ def _linear(bench: Bench, high: int, at_low: Pulse, at_high: Pulse) -> bool:
 
 
 def conduction(bench: Bench, high: int, low: int) -> Direction:
-    """Both conduction pulses of one polarity (raises Undischargeable)."""
+    """Both conduction pulses of one polarity (raises Undischargeable).
+
+    When the low-resistor pulse already shows stored charge the polarity is
+    capacitive and the high-resistor pulse is skipped (``at_high`` None).
+    """
     at_low = pulse(bench, high, low, "low")
     ensure_discharged(bench)
+    if at_low.rising and at_low.holding:
+        return Direction(high, low, at_low, None, "capacitive")
     at_high = pulse(bench, high, low, "high")
     ensure_discharged(bench)
     return Direction(high, low, at_low, at_high, _kind(bench, high, at_low, at_high))
