@@ -368,8 +368,9 @@ def healthy_band(board: Board, probes: Sequence[str], profile=None, engine: str 
     method
         "full": one run per sample; "linear": the checked model of
         :mod:`.surrogate` (full runs of :data:`FALLBACK_SAMPLES` samples
-        when its check fails); "auto": linear where the probed piece holds
-        a junction (runs are slow there), else full.
+        when its check fails); "auto": linear where runs are slow (a
+        junction on the probed piece, or an engine other than the
+        analytic one), else full.
     """
     if samples < 2:
         raise ValueError("a band needs at least two samples")
@@ -390,7 +391,8 @@ def healthy_band(board: Board, probes: Sequence[str], profile=None, engine: str 
     read = _tolerant(reader)
     names = [p.name for p in parts]
     if method == "auto":
-        method = "linear" if needs_surrogate(piece_parts(board, probes)) else "full"
+        slow = engine != "analytic" or needs_surrogate(piece_parts(board, probes))
+        method = "linear" if slow else "full"
     if method == "linear":
         result = linear_readings(read, board, parts, values / nominal, workers, quantiles)
         if result is not None:
