@@ -29,7 +29,7 @@ import numpy as np
 from ..engines.base import Drive, Session, Source, StepResult, Watch
 from .profile import Profile
 
-__all__ = ["AdcReading", "StepRecord", "Bench", "read_adc", "ticks", "RAILS", "VIAS"]
+__all__ = ["AdcReading", "StepRecord", "Bench", "read_adc", "ticks", "describe_drive", "RAILS", "VIAS"]
 
 #: Where a driven probe is tied: the supply ("high") or the tester's 0 V ("low").
 RAILS = ("high", "low")
@@ -62,6 +62,32 @@ def ticks(profile: Profile, seconds: float) -> int:
     return int(math.floor(seconds / profile.timer_tick_seconds + 1e-9))
 
 
+def describe_drive(profile: Profile, drive: Drive) -> str:
+    """Where each probe is tied, in words (probes numbered from 1).
+
+    >>> from incircuit.tester.profile import load_profile
+    >>> from incircuit.engines.base import Source
+    >>> describe_drive(load_profile(), (Source(702.0, 5.0), Source(20.0, 0.0), None))
+    '1: supply via low resistor; 2: 0 V via port; 3: floating'
+    """
+    words = []
+    for i, src in enumerate(drive):
+        if src is None:
+            words.append(f"{i + 1}: floating")
+            continue
+        high = src.volts > 0
+        port = profile.port_high_ohms if high else profile.port_low_ohms
+        via = f"{src.resistance:g} ohm"
+        options = {"port": port}
+        if i < 3:
+            options.update({f"{v} resistor": port + profile.probe_ohms(i, v) for v in ("low", "high")})
+        for name, ohms in options.items():
+            if math.isclose(src.resistance, ohms, rel_tol=1e-9):
+                via = name
+        words.append(f"{i + 1}: {'supply' if high else '0 V'} via {via}")
+    return "; ".join(words)
+
+
 @dataclass(frozen=True)
 class StepRecord:
     """One executed step of an identification run.
@@ -70,7 +96,8 @@ class StepRecord:
     the engine's StepResult, ``t_start`` the tester time (s) when the step
     began; ``sample_times`` (relative to ``t_start``) are the rows of
     ``result.samples``. ``sampled`` and ``formula`` say what the tester
-    reads in the step and what it computes from it.
+    reads in the step and what it computes from it; ``wiring`` says where
+    each probe is tied, in words.
     """
 
     name: str
@@ -81,6 +108,8 @@ class StepRecord:
     watch: Watch | None = None
     sampled: str = ""
     formula: str = ""
+    #: The drive in words, e.g. "1: supply via low resistor; 2: 0 V via port".
+    wiring: str = ""
 
     @property
     def t_end(self) -> float:
@@ -145,7 +174,8 @@ class Bench:
         """Simulate one step; ``at`` are times the tester itself samples."""
         times = sorted(set(_trace_times(duration, self.trace_points)) | {float(t) for t in at})
         result = self.session.run(drive, duration, watch=watch, sample_times=times)
-        record = StepRecord(name, drive, result, self.time, tuple(times), watch, sampled, formula)
+        record = StepRecord(name, drive, result, self.time, tuple(times), watch, sampled, formula,
+                            describe_drive(self.profile, drive))
         self.records.append(record)
         self.time += result.duration
         return record
