@@ -42,7 +42,11 @@ __all__ = [
 
 _KIND_WORD = {"resistor": "a resistor", "capacitor": "a capacitor", "inductor": "an inductor",
               "diode": "a junction", "diode-pair": "two junctions", "nothing": "nothing",
-              "unreadable": "no stable reading"}
+              "unreadable": "no stable reading", "bjt-npn": "an NPN transistor",
+              "bjt-pnp": "a PNP transistor", "mosfet-n-enh": "an N-channel MOSFET",
+              "mosfet-p-enh": "a P-channel MOSFET", "mosfet-n-dep": "an N-channel depletion MOSFET",
+              "mosfet-p-dep": "a P-channel depletion MOSFET", "jfet-n": "an N-channel JFET",
+              "jfet-p": "a P-channel JFET"}
 
 
 def reading_text(r: Reading, detail: bool = False) -> str:
@@ -57,6 +61,8 @@ def reading_text(r: Reading, detail: bool = False) -> str:
                 text += f", drops {float(r.extra['self_discharge']) * 100:.0f} %"  # type: ignore[arg-type]
         return text
     word = _KIND_WORD.get(r.kind, r.kind)
+    if r.value is not None and r.unit == "1":
+        return f"{word} (hFE {r.value:.0f})"
     return f"{word} ({format_value(r.value, r.unit)})" if r.value is not None else word
 
 
