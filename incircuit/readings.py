@@ -19,11 +19,12 @@ Rules (docs/diagnose.md has the full list):
 * ``nothing``, ``none``, ``open``: the tester found no part.
 * A secondary value after the first: ``esr 2.3ohm``, ``, ESR 2.3``, ``esr=2R3``.
 
-The kind comes from, in order: the unit; the kind word; the prefix letter
-(the IEC 60062 resistor letters R k M G T mean ohms, p n u mean farads);
-``default_kind`` (the kind of the part being diagnosed). A bare number is
-read as ohms or volts only; a capacitance or inductance needs a prefix or
-a unit.
+The kind comes from, in order: the unit; the kind word; ``default_kind``
+(the kind of the part being diagnosed) when the prefix letter suits it
+(``100u`` on an inductor is 100 uH); else the prefix letter (the IEC 60062
+resistor letters R k M G T mean ohms, p n u mean farads: ``10k`` on a
+capacitor is a resistance reading). A bare number is read as ohms or volts
+only; a capacitance or inductance needs a prefix or a unit.
 
 >>> parse_reading("4k7")
 Reading(kind='resistor', value=4700.0, unit='ohm', extra=mappingproxy({}))
@@ -90,6 +91,14 @@ _LETTER_KIND = {"R": "resistor", "r": "resistor", "k": "resistor", "K": "resisto
                 "p": "capacitor", "P": "capacitor", "n": "capacitor", "N": "capacitor",
                 "u": "capacitor", "U": "capacitor"}
 
+#: Prefix or code letters that suit each kind of reading.
+_LETTER_FITS = {
+    "resistor": {"R", "r", "k", "K", "M", "meg", "G", "T", "m"},
+    "capacitor": {"p", "P", "n", "N", "u", "U", "m"},
+    "inductor": {"n", "N", "u", "U", "m"},
+    "diode": {"m"},
+}
+
 _EXPECTED = ("expected a value with optional SI prefix and unit (4.7uF, 10k, 2R2, 580mV; "
              "M = mega, m = milli), an optional kind word (res, cap, diode), "
              "an optional 'esr 2.3', or 'nothing'")
@@ -112,8 +121,8 @@ def _normalise(text: str) -> str:
     return " ".join(text.split()).strip(" ,;")
 
 
-def _value(token: str, fail: _Fail) -> tuple[float, str | None, str | None, bool]:
-    """(value, kind from the unit, kind from the letter, had a prefix or code letter)."""
+def _value(token: str, fail: _Fail) -> tuple[float, str | None, str | None]:
+    """(value, kind from the unit, the prefix or code letter if any)."""
     token = token.replace(" ", "")
     if "," in token:
         fail("a comma inside a number is ambiguous: write a decimal point (4.7) or 4u7")
@@ -123,7 +132,6 @@ def _value(token: str, fail: _Fail) -> tuple[float, str | None, str | None, bool
         letter = m["letter"]
         power = 0 if letter in "Rr" else PREFIXES[letter]
         value = float(f"{m['int'] or '0'}.{m['frac']}e{power}")
-        letter_kind = _LETTER_KIND.get(letter)
     else:
         m = _NUMBER.match(token)
         if not m:
@@ -133,11 +141,19 @@ def _value(token: str, fail: _Fail) -> tuple[float, str | None, str | None, bool
             prefix = "meg"
         power = int(m["exp"] or 0) + (PREFIXES[prefix] if prefix else 0)
         value = float(f"{m['num']}e{power}")  # one rounding: 4.7e-9, not 4.700000000000001e-09
-        letter_kind = _LETTER_KIND.get(prefix) if prefix else None
+        letter = prefix
     if m["unit"]:
         unit_kind = _UNITS[m["unit"].lower()]
-    has_letter = bool(m.groupdict().get("prefix") or m.groupdict().get("letter"))
-    return value, unit_kind, letter_kind, has_letter
+    return value, unit_kind, letter or None
+
+
+def _kind_of_letter(letter: str | None, default_kind: str | None) -> str | None:
+    """The part's kind when the letter suits it (``100u`` on an inductor is
+    100 uH), else the kind the letter implies (``10k`` on a capacitor is a
+    resistance reading), else the part's kind."""
+    if letter is None or letter in _LETTER_FITS.get(default_kind or "", ()):
+        return default_kind
+    return _LETTER_KIND.get(letter) or default_kind
 
 
 def parse_reading(text: str, default_kind: str | None = None, *,
@@ -174,7 +190,7 @@ def parse_reading(text: str, default_kind: str | None = None, *,
     m = _SECONDARY_RE.search(text)
     if m and m.start() > 0:
         key = m["key"].lower()
-        value, unit_kind, _, _ = _value(m["value"], fail)
+        value, unit_kind, _ = _value(m["value"], fail)
         if unit_kind not in (None, "resistor"):
             fail(f"{key} must be a resistance")
         extra[key] = value
@@ -187,7 +203,8 @@ def parse_reading(text: str, default_kind: str | None = None, *,
         text = text[m.end():]
         if not text:
             fail(f"the kind word {m['word']!r} needs a value after it")
-    value, unit_kind, letter_kind, has_letter = _value(text, fail)
+    value, unit_kind, letter = _value(text, fail)
+    has_letter = letter is not None
 
     if word_kind in ("bjt-npn", "bjt-pnp"):
         if unit_kind or has_letter:
@@ -196,7 +213,7 @@ def parse_reading(text: str, default_kind: str | None = None, *,
     else:
         if unit_kind and word_kind and unit_kind != word_kind:
             fail(f"a {word_kind} is not measured in that unit")
-        kind = unit_kind or word_kind or letter_kind or default_kind
+        kind = unit_kind or word_kind or _kind_of_letter(letter, default_kind)
         if kind is None:
             fail("nothing says what was measured: add a unit or a kind word")
         if kind in ("capacitor", "inductor") and not (unit_kind or has_letter):

@@ -91,8 +91,23 @@ def test_value_with_secondary_esr(text, esr):
 def test_default_kind_fills_a_bare_number():
     assert parse_reading("470", "resistor").value == 470.0
     assert parse_reading("0.6", "diode").unit == "V"
-    # the unit or prefix wins over the part's kind: a capacitor can read as a resistor
-    assert parse_reading("2R2", "capacitor").kind == "resistor"
+
+
+@pytest.mark.parametrize(
+    "text,default,kind",
+    [
+        ("100u", "inductor", "inductor"),    # the letter suits the part: 100 uH
+        ("4u7", "resistor", "capacitor"),    # it does not: a capacitance reading
+        ("10k", "capacitor", "resistor"),    # a capacitor can read as a resistor
+        ("2R2", "capacitor", "resistor"),
+        ("4m7", "capacitor", "capacitor"),   # 4.7 mF
+        ("10m", "resistor", "resistor"),     # 10 mohm
+        ("580m", "diode", "diode"),          # 0.58 V
+        ("10uF", "inductor", "capacitor"),   # the unit wins over everything
+    ],
+)
+def test_kind_from_part_and_prefix_letter(text, default, kind):
+    assert parse_reading(text, default).kind == kind
 
 
 @pytest.mark.parametrize(
