@@ -134,18 +134,15 @@ def reduce_network(
 
     # (kind, a, b, value, tag) with kind in R C L J G; tag: inductor name,
     # junction name, or (G) the name of the controlling junction
-    items: list[list] = []
-    for a, b, g in branches.resistors:
-        items.append(["R", find(a), find(b), g, None])
-    for a, b, c in branches.capacitors:
-        items.append(["C", find(a), find(b), c, None])
+    items: list[list] = [["R", a, b, g, None] for a, b, g in branches.resistors]
+    items += [["C", a, b, c, None] for a, b, c in branches.capacitors]
+    items += [["L", a, b, h, name] for name, a, b, h in branches.inductors]
+    items += [["J", a, b, curve, name] for name, a, b, curve in branches.junctions]
+    items += [["G", a, b, gain, name] for a, b, name, gain in getattr(branches, "controlled", ())]
+    if branches.ties:
+        for it in items:
+            it[1], it[2] = find(it[1]), find(it[2])
     coupled = {n for n1, n2, _ in branches.couplings for n in (n1, n2)}
-    for name, a, b, h in branches.inductors:
-        items.append(["L", find(a), find(b), h, name])
-    for name, a, b, curve in branches.junctions:
-        items.append(["J", find(a), find(b), curve, name])
-    for a, b, name, gain in getattr(branches, "controlled", ()):
-        items.append(["G", find(a), find(b), gain, name])
     items = [it for it in items if it[1] != it[2] or (it[0] == "L" and it[4] in coupled)]
 
     # connected component of the probes (couplings join inductors magnetically)
@@ -184,19 +181,19 @@ def reduce_network(
     index.update({n: len(kept) + i for i, n in enumerate(elim)})
     nk, ne = len(kept), len(elim)
 
-    rows, cols, vals = [], [], []
     C = np.zeros((nk, nk))
     A_cols: list[tuple[int, int]] = []
     l_names: list[str] = []
     l_vals: list[float] = []
     junctions = []
     sources = []
+    res_i, res_j, res_g = [], [], []
     for kind, a, b, v, tag in items:
         i, j = index[a], index[b]
         if kind == "R":
-            rows += [i, j, i, j]
-            cols += [i, j, j, i]
-            vals += [v, v, -v, -v]
+            res_i.append(i)
+            res_j.append(j)
+            res_g.append(v)
         elif kind == "C":
             C[i, i] += v
             C[j, j] += v
@@ -218,25 +215,7 @@ def reduce_network(
         for p in probes:
             C[index[p], index[p]] += stray
             grounded[index[p]] = True
-    n = nk + ne
-    rows += list(range(n))
-    cols += list(range(n))
-    vals += [GMIN] * n
-    Gs = sp.coo_matrix((vals, (rows, cols)), shape=(n, n)).tocsc()
-    if ne:
-        Gkk = Gs[:nk, :nk].toarray()
-        Gek = Gs[nk:, :nk].toarray()
-        Gee = Gs[nk:, nk:]
-        if ne <= 64:
-            X = sla.cho_solve(sla.cho_factor(Gee.toarray()), Gek)
-        else:
-            X = spla.splu(Gee.tocsc()).solve(Gek)
-        G = Gkk - Gek.T @ X
-        G = 0.5 * (G + G.T)
-        recover = -X
-    else:
-        G = Gs.toarray()
-        recover = np.zeros((0, nk))
+    G, recover = _conductances(np.array(res_i, dtype=int), np.array(res_j, dtype=int), np.array(res_g), nk, ne)
 
     m = len(A_cols)
     A = np.zeros((nk, m))
@@ -280,14 +259,46 @@ def reduce_network(
     )
 
 
+def _conductances(ri: np.ndarray, rj: np.ndarray, g: np.ndarray, nk: int, ne: int) -> tuple[np.ndarray, np.ndarray]:
+    """Conductance matrix of the first ``nk`` nets with the last ``ne`` eliminated.
+
+    Returns ``(G, R)``: ``G = Gkk - Gke Gee^-1 Gek`` (GMIN on every net) and
+    ``R = -Gee^-1 Gek`` that recovers the eliminated voltages.
+    """
+    r = np.concatenate((ri, rj, ri, rj))
+    c = np.concatenate((ri, rj, rj, ri))
+    v = np.concatenate((g, g, -g, -g))
+    kk = (r < nk) & (c < nk)
+    Gkk = np.zeros((nk, nk))
+    np.add.at(Gkk, (r[kk], c[kk]), v[kk])
+    Gkk[np.diag_indices(nk)] += GMIN
+    if not ne:
+        return Gkk, np.zeros((0, nk))
+    ek = (r >= nk) & (c < nk)
+    Gek = np.zeros((ne, nk))
+    np.add.at(Gek, (r[ek] - nk, c[ek]), v[ek])
+    ee = (r >= nk) & (c >= nk)
+    d = np.arange(ne)
+    Gee = sp.coo_matrix(
+        (np.concatenate((v[ee], np.full(ne, GMIN))), (np.concatenate((r[ee] - nk, d)), np.concatenate((c[ee] - nk, d)))),
+        shape=(ne, ne),
+    ).tocsc()
+    if ne <= 64:
+        X = sla.cho_solve(sla.cho_factor(Gee.toarray()), Gek)
+    else:
+        X = spla.splu(Gee).solve(Gek)
+    G = Gkk - Gek.T @ X
+    return 0.5 * (G + G.T), -X
+
+
 def _prune(items: list[list], probes: set[str], parent: dict[str, str], coupled: set[str]) -> list[list]:
     """Remove dangling branches repeatedly; ``parent`` records where each went.
 
     A net is dangling when it is not probed and all its branches lead to one
     other net: no current can enter it, so (starting discharged, with every
     junction passing zero current at zero volts) it stays at that net's
-    voltage. A coupled inductor among them could be driven magnetically, so
-    such nets stay.
+    voltage. A coupled inductor among them could be driven magnetically, and
+    a controlled source (transistor action) forces a current, so such nets stay.
     """
     ends: dict[str, set[int]] = defaultdict(set)
     for k, it in enumerate(items):
@@ -299,8 +310,8 @@ def _prune(items: list[list], probes: set[str], parent: dict[str, str], coupled:
         others = set()
         for k in ends[net]:
             it = items[k]
-            if it[0] == "L" and it[4] in coupled:
-                return None
+            if (it[0] == "L" and it[4] in coupled) or it[0] == "G":
+                return None  # driven magnetically, or a controlled source
             others.add(it[2] if it[1] == net else it[1])
         return next(iter(others)) if len(others) == 1 else None
 

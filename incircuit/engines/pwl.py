@@ -19,7 +19,15 @@ Knots, from the left:
 
 * reverse breakdown (only when ``bv`` is finite): the same currents,
   negated, on ``V = -bv - n Vt ln(I / ibv) - I rs`` (through ``(-bv, -ibv)``);
-* reverse saturation at ``V = -5 n Vt`` (``I = -Is (1 - e^-5)``), the origin;
+* the end of the "off" segment ``V_r = -max(Is / g0, 0.05 n Vt)``: the off
+  segment is the chord from the origin to the first forward knot (slope
+  ``g0``), continued into reverse until it carries ``Is`` (but at least
+  0.05 n Vt = 1.3 mV away from zero). There is no knot at or near 0 V, so
+  junctions resting near zero bias (most of an unpowered board) do not
+  chatter between segments, and a discharged board stays at rest (the off
+  segment passes through the origin). The reverse current is then
+  ``max(Is, 0.05 g0 n Vt) + gmin |V|``: Is itself for large-Is parts, a few
+  pA for a small-signal silicon diode;
 * forward currents 1 nA, 10 nA, 100 nA, then ``per_decade`` per decade from
   1 uA to 1 A (those below ``Is`` are skipped).
 
@@ -63,9 +71,10 @@ CHARGE = 1.602176634e-19  # C, exact (SI 2019)
 TEMPERATURE = 300.15  # K: 27 degC, SPICE's default nominal temperature (TNOM)
 VT = BOLTZMANN * TEMPERATURE / CHARGE  # 25.865 mV
 
+#: The off segment reaches at least this many n Vt into reverse.
+_OFF_U = 0.05
 #: Forward knot currents below 1 uA (one per decade; the tester hardly sees these).
 _LOW_CURRENTS = (1e-9, 1e-8, 1e-7)
-_REVERSE_U = 5.0  # reverse-saturation knot at -5 n Vt
 
 
 @dataclass(frozen=True)
@@ -123,6 +132,9 @@ def _from_knots(v: list[float], i: list[float], g_left: float) -> Curve:
     # I = g V + i0 through the knot at each segment's left end (right end for s=0)
     anchor = np.concatenate(([0], np.arange(len(kv))))
     i0 = ki[anchor] - g * kv[anchor]
+    s0 = int(np.searchsorted(kv, 0.0, side="right"))
+    if 0 < s0 < len(kv) and kv[s0 - 1] < 0.0 < kv[s0]:
+        i0[s0] = 0.0  # the off segment passes exactly through the origin: rest is rest
     for arr in (kv, ki, g, i0):
         arr.flags.writeable = False  # shared through the cache
     return Curve(kv, ki, g, i0)
@@ -155,13 +167,18 @@ def junction_curve(
         1e-6 * 10 ** (k / per_decade) for k in range(int(round(per_decade * math.log10(i_max / 1e-6))) + 1)
     ]
     fwd = [c for c in currents if c >= is_]
-    v = [-_REVERSE_U * nvt, 0.0] + [shockley_voltage(c, is_, n, rs) for c in fwd]
-    i = [-is_ * -math.expm1(-_REVERSE_U), 0.0] + fwd
+    v = [shockley_voltage(c, is_, n, rs) for c in fwd]
+    # the "off" segment: the chord from the origin to the first forward knot,
+    # continued in reverse down to where it carries Is (at least _OFF_U n Vt away)
+    g0 = fwd[0] / v[0]
+    v_r = -max(is_ / g0, _OFF_U * nvt)
+    v = [v_r] + v
+    i = [g0 * v_r] + fwd
     if math.isfinite(bv) and bv > 0:
         rev_v, rev_i = [], []
         for c in currents:
             vb = -bv - nvt * math.log(c / ibv) - c * rs
-            if vb < v[0] - nvt:
+            if vb < v_r - nvt and -c < g0 * v_r:
                 rev_v.append(vb)
                 rev_i.append(-c)
         v = rev_v[::-1] + v

@@ -73,7 +73,19 @@ def test_curve_is_continuous_monotone_and_convex_forward():
 
 
 def test_large_saturation_current_keeps_reverse_leakage():
-    # a Schottky-like Is = 10 uA leaks about -Is in reverse (Shockley: I -> -Is)
+    # a Schottky-like Is = 10 uA leaks -Is in reverse (Shockley: I -> -Is), plus GMIN
     curve = junction_curve(10e-6, 1.05, 0.0)
-    assert current_at(curve, -1.0) == pytest.approx(-10e-6 * (1 - math.exp(-5)), rel=1e-3)
+    assert current_at(curve, -1.0) == pytest.approx(-10e-6 - 1e-12 * 1.0, rel=1e-9)
     assert voltage_at(curve, 1e-3) == pytest.approx(shockley_voltage(1e-3, 10e-6, 1.05), abs=1e-9)
+
+
+@pytest.mark.parametrize("is_, n", [(1e-14, 1.0), (2.5e-9, 1.75), (10e-6, 1.05), (1e-20, 3.0)])
+def test_rest_is_rest_and_no_knot_near_zero(is_, n):
+    # a junction at 0 V carries exactly 0 A (a discharged board stays at rest), and
+    # no knot lies within 0.05 n Vt of 0 V (junctions near zero bias do not chatter)
+    curve = junction_curve(is_, n)
+    assert current_at(curve, 0.0) == 0.0
+    assert np.min(np.abs(curve.knots_v)) >= 0.05 * n * VT * (1 - 1e-12)
+    # reverse current: Is, or a few pA where Is is tiny (Shockley: -Is), plus GMIN
+    leak = -current_at(curve, -2.0) - 2e-12
+    assert is_ * (1 - 1e-9) <= leak <= max(is_, 1e-11) * (1 + 1e-9)
