@@ -11,11 +11,15 @@ compared with what the part itself should show:
 * D: the multimeter's diode test, against the same test on the diode
   alone, inside ``READING_TOLERANCE`` plus the accuracy.
 
-A reading is not trusted when a junction on the board leaves the regime the
-instrument model assumes: a multimeter junction carrying more than
-``METER_JUNCTION_SHARE`` of the test current, or an LCR meter's test
-signal reaching a junction's turn-on voltage (its voltage at
-``CONDUCTING_CURRENT``).
+A reading inside the window must also follow the part: its sensitivity
+(the part's value +10 %, or a diode's saturation current x4 referred to its
+own reading) must reach ``BENCH_MIN_SENSITIVITY``, so that a match made by
+the parts around it by coincidence is not called reliable. An LCR reading
+is not trusted when the test signal drives a junction past its turn-on
+voltage (its voltage at ``CONDUCTING_CURRENT``): the small-signal model no
+longer holds. A multimeter's Shockley currents are in its reading already;
+junctions carrying more than ``METER_JUNCTION_SHARE`` of the test current
+are named as a note, and the two polarities must agree.
 
 Where the instrument has a guard terminal and the unguarded reading is not
 reliable, every net in the middle of a path beside the part is tried as
@@ -27,9 +31,11 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Sequence
+from typing import Callable, Sequence
 
-from ..bench import BenchProfile, BenchReading, bench_profiles, diode_drop, impedance, lcr_reading, ohms
+from ..bench import (
+    BenchProfile, BenchReading, Equivalents, bench_profiles, diode_drop, impedance, lcr_reading, ohms,
+)
 from ..bench.junctions import junctions
 from ..circuit import elements
 from ..errors import EngineError
@@ -37,7 +43,11 @@ from ..graph import between
 from ..model import Board, Part
 from ..units import format_value
 from .band import part_tolerance
-from .thresholds import CONDUCTING_CURRENT, MAX_GUARD_NETS, METER_JUNCTION_SHARE
+from .runs import with_model_param
+from .thresholds import (
+    BENCH_MIN_SENSITIVITY, CONDUCTING_CURRENT, JUNCTION_IS_FACTOR, MAX_GUARD_NETS, METER_JUNCTION_SHARE,
+    PERTURBATION, SEMICONDUCTOR_PARAMETER,
+)
 
 __all__ = ["Advice", "advise", "guard_nets"]
 
@@ -74,7 +84,9 @@ def guard_nets(board: Board, part: str, a: str, b: str, limit: int = MAX_GUARD_N
     return list(found)[:limit]
 
 
-def _meter_caveats(reading: BenchReading, own: str) -> list[str]:
+def _meter_notes(reading: BenchReading, own: str) -> list[str]:
+    """Junctions that carry a noticeable share of a multimeter's test current
+    (their Shockley current is in the reading already)."""
     out = []
     current = reading.current or 0.0
     for name, amps in sorted(reading.junctions.items(), key=lambda kv: -kv[1]):
@@ -84,6 +96,8 @@ def _meter_caveats(reading: BenchReading, own: str) -> list[str]:
 
 
 def _lcr_caveats(board: Board, peaks: dict, own: str) -> list[str]:
+    """Junctions the LCR test signal drives past turn-on: the small-signal
+    model no longer holds, so such a reading is not trusted."""
     out = []
     for j in junctions(elements(board)):
         peak = peaks.get(j.name, 0.0)
@@ -95,7 +109,12 @@ def _lcr_caveats(board: Board, peaks: dict, own: str) -> list[str]:
 
 
 def _judge(profile: BenchProfile, part: Part, reading: BenchReading, expected: float | None,
-           tol: tuple[float, float], caveats: list[str]) -> Advice:
+           tol: tuple[float, float], caveats: Sequence[str], notes: Sequence[str] = (),
+           follows: Callable[[], float | None] | None = None) -> Advice:
+    """The advice for one reading: inside the window, no blocking caveat, and
+    (checked last, it costs a solve) a sensitivity of at least
+    ``BENCH_MIN_SENSITIVITY`` from ``follows``."""
+    caveats = list(caveats)
     if reading.value is None or expected is None or not math.isfinite(reading.accuracy):
         low = high = None
         ok = False
@@ -103,6 +122,13 @@ def _judge(profile: BenchProfile, part: Part, reading: BenchReading, expected: f
         low = expected * (1 - tol[0]) - reading.accuracy
         high = expected * (1 + tol[1]) + reading.accuracy
         ok = low <= reading.value <= high and not caveats
+        if ok and follows is not None:
+            s = follows()
+            if s is None or s < BENCH_MIN_SENSITIVITY:
+                ok = False
+                shown = "no" if s is None else f"{s:.2f}"
+                caveats.append(f"it follows {part.name} only weakly (sensitivity {shown}): the match "
+                               f"is a coincidence of the parts around it")
     unit = reading.unit
     if expected is not None and low is not None:
         span = f"expected {format_value(expected, unit)}, window {format_value(low, unit)} .. " \
@@ -111,9 +137,10 @@ def _judge(profile: BenchProfile, part: Part, reading: BenchReading, expected: f
         span = f"expected {format_value(expected, unit)}"
     verdict = f"reads {part.name} reliably in circuit" if ok else f"does not read {part.name} in circuit"
     text = f"{profile.name}: {reading.describe()} ({span}): {verdict}"
-    if caveats:
-        text += "; " + "; ".join(caveats)
-    return Advice(profile.id, profile.name, reading, expected, low, high, ok, tuple(caveats), text)
+    if caveats or notes:
+        text += "; " + "; ".join([*caveats, *notes])
+    return Advice(profile.id, profile.name, reading, expected, low, high, ok,
+                  tuple([*caveats, *notes]), text)
 
 
 def _best(options: list[Advice]) -> Advice | None:
@@ -124,32 +151,74 @@ def _best(options: list[Advice]) -> Advice | None:
     return min(options, key=lambda a: (not a.reliable, distance(a)), default=None)
 
 
+def _ratio(now: float | None, then: float | None, step: float) -> float | None:
+    if now is None or then is None or now == 0:
+        return None
+    return (then - now) / now / step
+
+
+def _bumped(board: Board, part: Part) -> Board:
+    return board.with_part(part.with_value(float(part.value) * (1 + PERTURBATION)))  # type: ignore[arg-type]
+
+
+def _ohms_advice(profile: BenchProfile, board: Board, part: Part, a: str, b: str, guard: str | None,
+                 tol: tuple[float, float]) -> Advice:
+    fwd, rev = ohms(board, a, b, profile, guard), ohms(board, b, a, profile, guard)
+    notes = list(dict.fromkeys(_meter_notes(fwd, part.name) + _meter_notes(rev, part.name)))
+    caveats = []
+    if rev.value is None or fwd.value is None or abs(rev.value - fwd.value) > fwd.accuracy + rev.accuracy:
+        caveats.append(f"the reverse polarity reads {format_value(rev.value, 'ohm')}")
+    return _judge(profile, part, fwd, part.value, tol, caveats, notes, lambda: _ratio(
+        fwd.value, ohms(_bumped(board, part), a, b, profile, guard).value, PERTURBATION))
+
+
+def _diode_advice(profile: BenchProfile, board: Board, part: Part, tol: tuple[float, float]) -> Advice:
+    anode, cathode = part.pins[0], part.pins[1]
+    alone = diode_drop(board.only(part.name), anode, cathode, profile)
+    here = diode_drop(board, anode, cathode, profile)
+
+    def follows() -> float | None:
+        key, default = SEMICONDUCTOR_PARAMETER["D"]
+        model = board.models.get(part.model or "")
+        base = float(model.params.get(key, default)) if model is not None else default
+        changed = with_model_param(board, part.name, key, base * JUNCTION_IS_FACTOR)
+        ratio_alone = _ratio(alone.value, diode_drop(changed.only(part.name), anode, cathode, profile).value, 1)
+        ratio_here = _ratio(here.value, diode_drop(changed, anode, cathode, profile).value, 1)
+        return None if not ratio_alone or ratio_here is None else ratio_here / ratio_alone
+
+    return _judge(profile, part, here, alone.value, tol, [], _meter_notes(here, part.name), follows)
+
+
+def _lcr_advice(profile: BenchProfile, board: Board, part: Part, a: str, b: str, guard: str | None,
+                tol: tuple[float, float]) -> Advice | None:
+    options = []
+    for f in profile.frequencies:
+        eq, peaks = impedance(board, a, b, profile, f, guard)
+        caveats = _lcr_caveats(board, peaks, part.name)
+        bumped: list[Equivalents] = []
+
+        def follows(q: str, eq: Equivalents = eq, f: float = f, bumped: list = bumped) -> float | None:
+            if not bumped:
+                bumped.append(impedance(_bumped(board, part), a, b, profile, f, guard)[0])
+            return _ratio(eq.value(q), bumped[0].value(q), PERTURBATION)
+
+        for q in _QUANTITIES[part.kind]:
+            options.append(_judge(profile, part, lcr_reading(eq, q, profile, guard, peaks), part.value,
+                                  tol, caveats, (), lambda q=q, follows=follows: follows(q)))
+    return _best(options)
+
+
 def _measure(profile: BenchProfile, board: Board, part: Part, a: str, b: str,
              guard: str | None) -> Advice | None:
     tol = part_tolerance(part)[:2]
-    if profile.kind == "multimeter" and part.kind == "R" and (guard is None or profile.guard):
-        fwd, rev = ohms(board, a, b, profile, guard), ohms(board, b, a, profile, guard)
-        caveats = _meter_caveats(fwd, part.name) + _meter_caveats(rev, part.name)
-        advice = _judge(profile, part, fwd, part.value, tol, caveats)
-        if advice.reliable and advice.low is not None and advice.high is not None and not (
-                rev.value is not None and advice.low <= rev.value <= advice.high):
-            return _judge(profile, part, fwd, part.value, tol,
-                          [f"the reverse polarity reads {format_value(rev.value, 'ohm')}"])
-        return advice
-    if profile.kind == "multimeter" and part.kind == "D" and guard is None:
-        anode, cathode = part.pins[0], part.pins[1]
-        alone = diode_drop(board.only(part.name), anode, cathode, profile)
-        here = diode_drop(board, anode, cathode, profile)
-        return _judge(profile, part, here, alone.value, tol, _meter_caveats(here, part.name))
-    if profile.kind == "lcr" and part.kind in _QUANTITIES and (guard is None or profile.guard):
-        options = []
-        for f in profile.frequencies:
-            eq, peaks = impedance(board, a, b, profile, f, guard)
-            caveats = _lcr_caveats(board, peaks, part.name)
-            for q in _QUANTITIES[part.kind]:
-                options.append(_judge(profile, part, lcr_reading(eq, q, profile, guard, peaks),
-                                      part.value, tol, caveats))
-        return _best(options)
+    if guard is not None and not profile.guard:
+        return None
+    if profile.kind == "multimeter" and part.kind == "R" and part.value:
+        return _ohms_advice(profile, board, part, a, b, guard, tol)
+    if profile.kind == "multimeter" and part.kind == "D" and guard is None and len(part.pins) == 2:
+        return _diode_advice(profile, board, part, tol)
+    if profile.kind == "lcr" and part.kind in _QUANTITIES and part.value:
+        return _lcr_advice(profile, board, part, a, b, guard, tol)
     return None
 
 

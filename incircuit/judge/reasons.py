@@ -25,6 +25,7 @@ Every number is printed with :func:`incircuit.units.format_value`.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from typing import Iterable, Sequence
 
@@ -83,6 +84,13 @@ def deviation_reason(part: str, iso: Reading, inc: Reading) -> str:
 
 def _labels(path: Path) -> str:
     labels = [k.label() for k in path.links] or list(path.parts)
+    return _join(labels)
+
+
+def _join(labels: Sequence[str], most: int = 4) -> str:
+    labels = list(labels)
+    if len(labels) > most:
+        labels = labels[:most - 1] + [f"{len(labels) - most + 1} more"]
     return labels[0] if len(labels) == 1 else ", ".join(labels[:-1]) + " and " + labels[-1]
 
 
@@ -99,45 +107,42 @@ def _resistive(path: Path, name: str, kind: str, value: float | None) -> str:
     if kind == "R" and value and ohms > 0:
         text += f": in parallel they give {format_value(_parallel(value, ohms), 'ohm')}"
     elif kind == "C" and value and ohms > 0:
-        text += (f": it discharges {name} with a time constant of "
-                 f"{format_value(ohms * value, 's')}")
-    elif kind == "L":
-        text += ": the current divides between them"
+        text += f": it discharges {name} with a time constant of {format_value(ohms * value, 's')}"
+    elif kind == "D":
+        text += ": it takes part of the current the junction would carry"
     return text
 
 
-def _capacitive(path: Path, name: str, kind: str, value: float | None) -> str:
-    c = path.capacitance
-    if kind == "C" and c is not None:
-        if len(path.parts) == 1:
-            nets = " and ".join(path.nets[::len(path.nets) - 1])
-            total = c + (value or 0.0)
-            return (f"{_labels(path)} and {name} share nets {nets}: the reading is their sum "
-                    f"({format_value(total, 'F')})")
-        return f"{_labels(path)} in series add {format_value(c, 'F')} beside {name}"
-    if kind == "R" and c is not None and value:
-        return (f"{_labels(path)} beside {name} must charge first (time constant "
-                f"{format_value(value * c, 's')})")
-    return f"{_labels(path)} lies beside {name}"
-
-
-def _one_path(path: Path, name: str, kind: str, value: float | None) -> str:
-    if path.kind == "resistive":
-        return _resistive(path, name, kind, value)
-    if path.kind == "capacitive":
-        return _capacitive(path, name, kind, value)
-    if path.kind == "inductive":
-        return f"{_labels(path)} joins the same nets: a short at DC beside {name}"
-    if path.kind == "chip":
-        return f"{_labels(path)} joins the same nets beside {name}"
-    if path.kind == "junction":
-        return f"{_labels(path)} lies beside {name} and conducts only when forward biased"
-    return f"{_labels(path)} lies beside {name}"
+def _capacitor_reasons(paths: Sequence[Path], name: str, kind: str, value: float | None,
+                       nets: tuple[str, str]) -> list[str]:
+    """Direct parallel capacitors as one sum; the largest series chain; for a
+    resistor the largest capacitance it must charge."""
+    direct = [q for q in paths if len(q.parts) == 1 and q.capacitance is not None]
+    chains = [q for q in paths if len(q.parts) > 1 and q.capacitance is not None]
+    out = []
+    if kind == "C" and direct:
+        total = (value or 0.0) + sum(float(q.capacitance) for q in direct)  # type: ignore[arg-type]
+        names = _join([q.links[0].label() if q.links else q.parts[0] for q in direct])
+        verb = "shares" if len(direct) == 1 else "share"
+        out.append(f"{names} {verb} nets {nets[0]} and {nets[1]} with {name}: the reading is "
+                   f"their sum ({format_value(total, 'F')})")
+    if kind == "C" and chains and value:
+        big = max(chains, key=lambda q: float(q.capacitance))  # type: ignore[arg-type]
+        if float(big.capacitance) >= 0.01 * value:  # type: ignore[arg-type]
+            out.append(f"{_labels(big)} in series add {format_value(big.capacitance, 'F')} beside {name}")
+    if kind == "R" and value and (direct or chains):
+        big = max(direct + chains, key=lambda q: float(q.capacitance))  # type: ignore[arg-type]
+        out.append(f"{_labels(big)} beside {name} must charge through it (time constant "
+                   f"{format_value(value * float(big.capacitance), 's')})")  # type: ignore[arg-type]
+    return out
 
 
 def path_reasons(board: Board, part: str, probes: Sequence[str], iso: Reading, inc: Reading,
-                 limit: int = 4) -> list[str]:
-    """What the graph shows between the probed nets, most influential first."""
+                 limit: int = 2) -> list[str]:
+    """What the graph shows between the probed nets, most influential first:
+    the ``limit`` lowest resistive paths (and the resistance of all of them
+    together), capacitors in parallel (their sum) or to be charged, inductors
+    as shorts. Junction and chip paths are told from the simulation instead."""
     p = board.part(part)
     nets = list(dict.fromkeys(probes))
     out: list[str] = []
@@ -148,46 +153,52 @@ def path_reasons(board: Board, part: str, probes: Sequence[str], iso: Reading, i
                 out.append(f"nets {a} and {b} are tied by a part that acts as a wire: "
                            f"the tester sees a short across {p.name}")
                 continue
-            paths = [q for q in found.paths if q.kind != "junction"]
-            for path in paths[:limit]:
-                out.append(_one_path(path, p.name, p.kind, p.value))
-            if len(paths) > limit:
-                out.append(f"{len(paths) - limit} more paths join {a} and {b}")
+            shown: list[str] = []
+            resistive = sorted((q for q in found.paths if q.kind == "resistive"),
+                               key=lambda q: q.dc_resistance or 0.0)
+            shown += [_resistive(q, p.name, p.kind, p.value) for q in resistive[:limit]]
             rest = found.equivalent_resistance
-            resistive = [q for q in paths if q.kind == "resistive"]
-            if len(resistive) > 1 and math.isfinite(rest) and p.kind == "R" and p.value:
-                out.append(f"together the resistors beside {p.name} measure "
-                           f"{format_value(rest, 'ohm')} between {a} and {b}; with {p.name} "
-                           f"{format_value(_parallel(p.value, rest), 'ohm')}")
+            if len(resistive) > 1 and math.isfinite(rest):
+                text = (f"together the resistors beside {p.name} measure "
+                        f"{format_value(rest, 'ohm')} between {a} and {b}")
+                if p.kind == "R" and p.value:
+                    text += f"; with {p.name} {format_value(_parallel(p.value, rest), 'ohm')}"
+                shown.append(text)
+            shown += _capacitor_reasons([q for q in found.paths if q.kind == "capacitive"],
+                                        p.name, p.kind, p.value, (a, b))
+            inductive = [q for q in found.paths if q.kind == "inductive"]
+            if inductive and p.kind != "L":
+                shown.append(f"{_labels(inductive[0])} joins {a} and {b}: a short at DC beside {p.name}")
+            out += shown
+            others = len(found.paths) - len(resistive[:limit]) - (1 if inductive else 0) - sum(
+                1 for q in found.paths if q.kind == "capacitive")
+            if others > 0 and found.paths:
+                kinds = sorted({q.kind for q in found.paths} - {"resistive", "capacitive"})
+                what = f" ({', '.join(kinds)})" if kinds else ""
+                out.append(f"{others} more paths{what} join {a} and {b}")
     if not out and iso.kind == inc.kind:
         out.append(f"nothing else on the board joins the probed nets of {p.name}")
     return out
 
 
+def junction_label(j: Junction) -> str:
+    """``"D6"``, ``"Q1 B-E"``, ``"XU1's protection diode at pin 2 (to its supply)"``."""
+    found = re.fullmatch(r"(.+)~P(\d+)~D([HL])\d+", j.name)
+    if found:
+        side = "to its supply" if found.group(3) == "H" else "from its ground"
+        return f"{found.group(1)}'s protection diode at pin {found.group(2)} ({side})"
+    return j.name if j.part in (j.name, "") or j.name.startswith(j.part + " ") else f"{j.name} (of {j.part})"
+
+
 @dataclass(frozen=True)
 class Conduction:
-    """A junction's largest forward bias during the run."""
+    """A junction's strongest conduction during the run: forward voltage,
+    current and its share of the current the probes drove in that step."""
 
     junction: Junction
     volts: float
     current: float
-
-
-def conducting_junctions(board: Board, run, minimum: float = CONDUCTING_CURRENT) -> list[Conduction]:
-    """Junctions whose Shockley current reached ``minimum`` at the end of
-    some step of ``run`` (from the node voltages the engine reported)."""
-    best: dict[str, Conduction] = {}
-    js = junctions(elements(board))
-    for step in getattr(run, "steps", ()):
-        nets = step.result.nets
-        for j in js:
-            if j.anode not in nets or j.cathode not in nets:
-                continue
-            v = float(nets[j.anode]) - float(nets[j.cathode])
-            i = j.current(v)
-            if i >= minimum and (j.name not in best or i > best[j.name].current):
-                best[j.name] = Conduction(j, v, i)
-    return sorted(best.values(), key=lambda c: -c.current)
+    share: float
 
 
 def _probe_current(step) -> float:
@@ -199,15 +210,38 @@ def _probe_current(step) -> float:
     return total
 
 
+def conducting_junctions(board: Board, run, minimum: float = CONDUCTING_CURRENT,
+                         share: float = CURRENT_SHARE_SHOWN) -> list[Conduction]:
+    """Junctions that carried at least ``minimum`` amperes and ``share`` of
+    the probe current at the end of some step of ``run`` (from the net
+    voltages the engine reported and Shockley's law)."""
+    best: dict[str, Conduction] = {}
+    js = junctions(elements(board))
+    for step in getattr(run, "steps", ()):
+        nets = step.result.nets
+        total = _probe_current(step)
+        if total <= 0:
+            continue
+        for j in js:
+            if j.anode not in nets or j.cathode not in nets:
+                continue
+            v = float(nets[j.anode]) - float(nets[j.cathode])
+            i = j.current(v)
+            frac = min(i / total, 1.0)
+            if i >= minimum and frac >= share and (j.name not in best or i > best[j.name].current):
+                best[j.name] = Conduction(j, v, i, frac)
+    return sorted(best.values(), key=lambda c: -c.current)
+
+
 def current_share(board: Board, part: str, run) -> tuple[float, float, float] | None:
     """(share of the probe current through ``part``, that current, probe
-    current) at the end of the step that drove the most current; only for
-    a resistor or a diode under test, whose current follows from its pins'
-    voltages."""
+    current) for a resistor (in the step that drove the most current) or a
+    diode (in the step where it carried the most), whose current follows
+    from its pins' voltages."""
     p = board.part(part)
     if p.kind not in ("R", "D") or len(p.pins) != 2:
         return None
-    js = [j for j in junctions(elements(board.only(p.name)))] if p.kind == "D" else []
+    js = list(junctions(elements(board.only(p.name)))) if p.kind == "D" else []
     best = None
     for step in getattr(run, "steps", ()):
         nets = step.result.nets
@@ -220,28 +254,28 @@ def current_share(board: Board, part: str, run) -> tuple[float, float, float] | 
         if p.kind == "R":
             if not p.value:
                 continue
-            i = abs(v) / p.value
+            i, rank = abs(v) / p.value, total
         else:
-            i = js[0].current(v) if js else 0.0
-        if best is None or total > best[2]:
-            best = (min(i / total, 1.0), i, total)
-    return best
+            i = max(js[0].current(v), 0.0) if js else 0.0
+            rank = i
+        if best is None or rank > best[3]:
+            best = (min(i / total, 1.0), i, total, rank)
+    return best[:3] if best is not None else None
 
 
 def junction_reasons(conducting: Iterable[Conduction], part: str, iso: Reading, inc: Reading) -> list[str]:
-    """``"D2 conducts at about 600 mV under the tester's drive: ..."``"""
+    """``"D2 conducts at about 0.6 V under the tester's drive: ..."``"""
     out = []
     own = part.upper()
     for c in conducting:
         if c.junction.part == own:
             continue
-        what = c.junction.name if c.junction.part == c.junction.name else \
-            f"{c.junction.name} (of {c.junction.part})"
-        text = f"{what} conducts at about {format_value(c.volts, 'V', 2)} under the tester's drive"
+        text = (f"{junction_label(c.junction)} conducts at about {format_value(c.volts, 'V', 2)} "
+                f"under the tester's drive")
         if inc.kind in ("diode", "diode-pair") and iso.kind not in ("diode", "diode-pair"):
             text += ": the reading becomes a junction"
         else:
-            text += f" ({format_value(c.current, 'A', 2)})"
+            text += f", taking {c.share * 100:.0f} % of the probe current"
         out.append(text)
     return out
 

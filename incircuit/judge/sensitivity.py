@@ -2,8 +2,8 @@
 
 ``S = (dReading/Reading) / (dValue/Value)`` by a symmetric difference:
 
-* R, C, L: the value times ``1 + PERTURBATION`` and ``1 - PERTURBATION``;
-  ``S = (r+ - r-) / r0 / (2 * PERTURBATION)``.
+* R, C, L: the value times ``1 + d`` and ``1 - d``;
+  ``S = (r+ - r-) / r0 / (2 d)``, with ``d`` from :func:`value_step`.
 * D, Q, M, J: the model parameter of ``SEMICONDUCTOR_PARAMETER`` (a
   diode's saturation current, a transistor's forward gain, a FET's
   transconductance) times and divided by a factor; the change of the
@@ -18,6 +18,11 @@ one-sided difference; when both do, or the reading has no value, S is None.
 >>> R = lambda v: Reading("resistor", v)
 >>> round(ratio(R(5000.0), R(5150.0), R(4850.0), 0.2), 3)   # 300/5000 over 20 %
 0.3
+>>> from incircuit.model import Part, Tolerance
+>>> value_step(Part("C1", "C", ("A", "B"), 1e-6, tolerance=Tolerance.symmetric(0.2)))
+0.2
+>>> value_step(Part("R1", "R", ("A", "B"), 1e3, tolerance=Tolerance.symmetric(0.01)))
+0.1
 """
 
 from __future__ import annotations
@@ -25,11 +30,21 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import Sequence
 
-from ..model import Board, Reading
+from ..model import Board, Part, Reading
+from .band import part_tolerance
 from .runs import Runs, with_model_param
-from .thresholds import JUNCTION_IS_FACTOR, PERTURBATION, SEMICONDUCTOR_PARAMETER
+from .thresholds import JUNCTION_IS_FACTOR, PERTURBATION, SEMICONDUCTOR_PARAMETER, TOLERANCE_STEP_RANGE
 
-__all__ = ["Sensitivity", "sensitivity", "ratio", "perturbed_boards"]
+__all__ = ["Sensitivity", "sensitivity", "ratio", "perturbed_boards", "value_step"]
+
+
+def value_step(part: Part) -> float:
+    """Relative step of an R, C or L for the symmetric difference: its
+    tolerance when symmetric and within ``TOLERANCE_STEP_RANGE``, else
+    ``PERTURBATION``."""
+    minus, plus, _ = part_tolerance(part)
+    lo, hi = TOLERANCE_STEP_RANGE
+    return minus if minus == plus and lo <= minus <= hi else PERTURBATION
 
 
 @dataclass(frozen=True)
@@ -71,7 +86,8 @@ def perturbed_boards(board: Board, part: str, up: bool) -> tuple[Board, str, flo
     factor applied."""
     p = board.part(part)
     if p.kind in ("R", "C", "L") and p.value:
-        factor = 1.0 + PERTURBATION if up else 1.0 - PERTURBATION
+        step = value_step(p)
+        factor = 1.0 + step if up else 1.0 - step
         return board.with_part(p.with_value(p.value * factor)), "value", factor
     if p.kind in SEMICONDUCTOR_PARAMETER:
         key, default = SEMICONDUCTOR_PARAMETER[p.kind]
@@ -91,13 +107,18 @@ def sensitivity(runs: Runs, board: Board, part: str, probes: Sequence[str], base
         down, _, _ = perturbed_boards(board, p.name, False)
     except ValueError:
         return Sensitivity(None, "value", 0.0)
-    plus, minus = runs.reading(up, probes), runs.reading(down, probes)
+    plus, minus = runs.try_reading(up, probes), runs.try_reading(down, probes)
     if what == "value":
-        return Sensitivity(ratio(base, plus, minus, 2 * PERTURBATION), what, PERTURBATION, plus, minus)
-    # a semiconductor: refer the in-circuit change to the isolated change
-    iso = iso if iso is not None else runs.isolated(board, p.name, probes)
-    iso_plus = runs.isolated(up, p.name, probes)
-    iso_minus = runs.isolated(down, p.name, probes)
+        step = value_step(p)
+        return Sensitivity(ratio(base, plus, minus, 2 * step), what, step, plus, minus)
+    # a semiconductor: refer the in-circuit change to the isolated change, the
+    # part alone probed on the same nets (or on its own pins if a probe is elsewhere)
+    own = tuple(probes) if all(n in p.pins for n in probes) else tuple(p.pins[:len(probes)])
+    iso = iso if iso is not None else runs.isolated(board, p.name, own)
+    if iso is None:
+        return Sensitivity(None, what, 0.0, plus, minus)
+    iso_plus = runs.isolated(up, p.name, own)
+    iso_minus = runs.isolated(down, p.name, own)
     iso_span = ratio(iso, iso_plus, iso_minus, 1.0)
     in_span = ratio(base, plus, minus, 1.0)
     if iso_span in (None, 0.0) or in_span is None:

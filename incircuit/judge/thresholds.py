@@ -10,7 +10,10 @@ Verdicts
                     a fault still moves it away from the predicted value.
 
 Sensitivity ``S = (dReading/Reading) / (dValue/Value)`` is a symmetric
-difference: the part's value times ``1 +/- PERTURBATION``. A junction has no
+difference: the part's value times ``1 +/- step``, where the step is the
+part's symmetric tolerance when it lies within :data:`TOLERANCE_STEP_RANGE`
+(then the same two runs give the healthy band and S) and
+:data:`PERTURBATION` otherwise. A junction has no
 single value; its reading is a forward voltage, so its saturation current
 is scaled by ``JUNCTION_IS_FACTOR`` both ways and the change of the
 in-circuit reading is referred to the change of the isolated reading (the
@@ -27,7 +30,7 @@ __all__ = [
     "VERDICTS", "VERDICT_RANK", "MASKED_SENSITIVITY", "PERTURBATION", "JUNCTION_IS_FACTOR",
     "SEMICONDUCTOR_PARAMETER", "DEFAULT_TOLERANCE", "READING_TOLERANCE", "DETECT_MARGIN",
     "CONDUCTING_CURRENT", "CURRENT_SHARE_SHOWN", "MAX_NEIGHBOUR_PARTS", "MAX_GUARD_NETS",
-    "METER_JUNCTION_SHARE", "ESR_COUNTS", "SELF_DISCHARGE_MARGIN",
+    "METER_JUNCTION_SHARE", "BENCH_MIN_SENSITIVITY", "ESR_COUNTS", "SELF_DISCHARGE_MARGIN", "TOLERANCE_STEP_RANGE",
 ]
 
 #: Verdicts, best first.
@@ -44,6 +47,12 @@ MASKED_SENSITIVITY = 0.2
 #: cent stays well above the reading's quantisation and small enough that
 #: the reading is close to linear in the value.
 PERTURBATION = 0.10
+
+#: A symmetric tolerance within these limits is used as the step instead:
+#: at 5 % the change still spans about ten steps of the tester's divider
+#: reading; up to 20 % a symmetric difference stays close to the derivative
+#: (its error is second order in the step).
+TOLERANCE_STEP_RANGE = (0.05, 0.20)
 
 #: A junction's saturation current is multiplied and divided by this factor;
 #: its forward voltage then moves by ``n Vt ln 4`` (about 36 mV for n = 1,
@@ -98,8 +107,16 @@ CURRENT_SHARE_SHOWN = 0.05
 #: junction carries less than this share of the test current.
 METER_JUNCTION_SHARE = 0.01
 
-#: The lift plan tries at most this many neighbour parts (nearest paths first).
-MAX_NEIGHBOUR_PARTS = 6
+#: A bench reading inside the part's window must also follow the part this
+#: closely (sensitivity) to be called reliable: a reading that is the part's
+#: own moves one to one with it; below 0.8 the parts around it make up a
+#: fifth or more of the reading and the match is a coincidence.
+BENCH_MIN_SENSITIVITY = 0.8
+
+#: The lift plan tries at most this many neighbour parts (nearest paths
+#: first): each costs one identification run, and more than a few
+#: neighbours rarely changes the best action.
+MAX_NEIGHBOUR_PARTS = 4
 
 #: A guarded bench measurement tries at most this many guard nets.
 MAX_GUARD_NETS = 8

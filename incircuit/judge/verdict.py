@@ -35,8 +35,8 @@ from .reasons import (
     reading_text, share_reason,
 )
 from .runs import Runs
-from .sensitivity import Sensitivity, perturbed_boards, ratio, sensitivity
-from .thresholds import MASKED_SENSITIVITY, PERTURBATION, VERDICT_RANK
+from .sensitivity import Sensitivity, perturbed_boards, ratio, sensitivity, value_step
+from .thresholds import MASKED_SENSITIVITY, VERDICT_RANK
 
 __all__ = ["Judgement", "LiftOutcome", "judge", "classify", "reliable_window"]
 
@@ -146,32 +146,40 @@ class Judgement:
 
 def _band(runs: Runs, board: Board, part: Part, probes: Sequence[str], inc: Reading,
           sens: Sensitivity, accuracy) -> ToleranceBand:
-    readings = [inc]
+    readings: list[Reading | None] = [inc]
     if part.kind in ("R", "C", "L") and part.value:
         minus, plus, _ = part_tolerance(part)
         for factor in (1 - minus, 1 + plus):
-            readings.append(runs.reading(board.with_part(part.with_value(part.value * factor)), probes))
+            readings.append(runs.try_reading(board.with_part(part.with_value(part.value * factor)), probes))
     else:
-        readings += [r for r in (sens.plus, sens.minus) if r is not None]
-    return ToleranceBand.of(readings, accuracy)
+        readings += [sens.plus, sens.minus]
+    return ToleranceBand.of([r for r in readings if r is not None], accuracy)
 
 
 def _lift(runs: Runs, board: Board, part: Part, probes: Sequence[str], iso: Reading,
           accuracy) -> list[LiftOutcome]:
-    out = []
+    out: list[LiftOutcome] = []
+    own_reliable = False
     for action in lift_candidates(board, part.name, probes):
         lifted, new_probes = action.apply(board, probes)
-        reading = runs.reading(lifted, new_probes)
+        reading = runs.try_reading(lifted, new_probes)
+        if reading is None:
+            continue
+        window = reliable_window(iso, part, accuracy(reading))
+        inside = (reading.kind == iso.kind and reading.value is not None and window is not None
+                  and window[0] <= reading.value <= window[1])
+        if not action.own and own_reliable and not inside:
+            continue  # a neighbour that does worse than the part's own leg: not worth a run more
         s = None
-        if reading.kind == iso.kind and reading.value is not None:
-            window = reliable_window(iso, part, accuracy(reading))
-            if window is None or not window[0] <= reading.value <= window[1]:
-                try:
-                    up, _, _ = perturbed_boards(lifted, part.name, True)
-                    s = ratio(reading, runs.reading(up, new_probes), None, 2 * PERTURBATION)
-                except ValueError:
-                    s = None
+        if reading.kind == iso.kind and reading.value is not None and not inside:
+            try:
+                up, _, _ = perturbed_boards(lifted, part.name, True)
+            except ValueError:
+                up = None
+            if up is not None:
+                s = ratio(reading, runs.try_reading(up, new_probes), None, 2 * value_step(part))
         verdict, _ = classify(iso, reading, s, part, accuracy(reading))
+        own_reliable = own_reliable or (action.own and verdict == "reliable")
         out.append(LiftOutcome(action, reading, verdict, tuple(new_probes), s))
 
     def distance(x: LiftOutcome) -> float:
@@ -217,7 +225,8 @@ def judge(board: Board, part: str, prediction, profile, engine: str = "analytic"
         runs.seed(board.only(p.name), probes, prediction.isolated)
         iso = prediction.isolated.reading
     else:
-        iso = runs.isolated(board, p.name, probes)
+        # probes off the part's pins: the part alone on its own pins stands for it
+        iso = runs.isolated(board, p.name, p.pins[:len(probes)]) or Reading("unreadable")
     accuracy = getattr(profile, "accuracy", lambda r: 0.0)
 
     sens = sensitivity(runs, board, p.name, probes, inc, iso)
@@ -237,7 +246,10 @@ def judge(board: Board, part: str, prediction, profile, engine: str = "analytic"
         reasons.append(share)
     reasons.append(_sensitivity_words(p, sens))
     cost = {"runs_simulated": runs.calls, "runs_reused": runs.hits,
-            "seconds": round(time.perf_counter() - started, 4)}
+            "runs_failed": len(runs.failures), "seconds": round(time.perf_counter() - started, 4)}
+    if runs.failures:
+        reasons.append(f"{len(runs.failures)} of the extra simulations failed and were left out "
+                       f"(first: {runs.failures[0]})")
     return Judgement(p.name, probes, verdict, sens, tuple(dict.fromkeys(reasons)), tuple(faults),
                      tuple(lift), tuple(advice), healthy, cost)
 

@@ -42,17 +42,32 @@ def test_lift_plan_junction_path_beside_resistor():
 
 
 def test_lift_plan_ranks_neighbours_by_verdict_hh_ch1():
-    # R1 = 10 kohm beside R2 = 100 ohm and R3 = 20 kohm. Lifting R2 leaves
-    # 10k || 20k = 6.67 kohm with S = 20/30 (predictable); lifting R3 leaves
-    # 10k || 100 with S = 0.01 (masked).
+    # R1 = 10 kohm beside R2 = 100 ohm and R3 = 20 kohm, probed from test pads TA
+    # and TB, each 10 ohm away. Lifting R2 leaves 10k || 20k + 20 = 6.69 kohm with
+    # S = 20/30 (predictable); lifting R3 leaves 10k || 100 + 20 (S = 0.01, masked);
+    # lifting a leg of R1 (the probes stay on the pads) leaves R2 || R3 alone
+    # (S = 0, masked); lifting R5 or R6 leaves a pad bare (nothing found, masked).
+    b = Board("t", (Part("R1", "R", ("A", "B"), 10e3, tolerance=Tolerance.symmetric(0.05)),
+                    Part("R2", "R", ("A", "B"), 100.0), Part("R3", "R", ("A", "B"), 20e3),
+                    Part("R5", "R", ("TA", "A"), 10.0), Part("R6", "R", ("B", "TB"), 10.0)))
+    prediction = predict(b, "R1", ("TA", "TB"), profile=PROFILE)
+    j = judge(b, "R1", prediction, PROFILE, "analytic")
+    order = [(x.action.part, x.verdict) for x in j.lift]
+    assert order[:3] == [("R2", "predictable"), ("R1", "masked"), ("R1", "masked")]
+    assert sorted(order[3:]) == [("R3", "masked"), ("R5", "masked"), ("R6", "masked")]
+    r2 = j.lift[0]
+    assert r2.probes == ("TA", "TB")
+    assert r2.reading.value == pytest.approx(20e3 / 3 + 20, rel=0.01)  # rtol: tester accuracy
+    assert r2.sensitivity == pytest.approx(2 / 3, abs=0.05)            # one-sided +10 % difference
+
+
+def test_neighbours_worse_than_own_leg_are_left_out():
+    # with the probes on R1's own pins a lifted leg of R1 is R1 alone (reliable);
+    # lifting R2 (leaving 10k || 20k) or R3 (leaving 10k || 100) does worse
     b = Board("t", (Part("R1", "R", ("A", "B"), 10e3, tolerance=Tolerance.symmetric(0.05)),
                     Part("R2", "R", ("A", "B"), 100.0), Part("R3", "R", ("A", "B"), 20e3)))
     j = _judge(b, "R1")
-    order = [(x.action.part, x.verdict) for x in j.lift]
-    assert order == [("R1", "reliable"), ("R1", "reliable"), ("R2", "predictable"), ("R3", "masked")]
-    r2 = next(x for x in j.lift if x.action.part == "R2")
-    assert r2.reading.value == pytest.approx(20e3 / 3, rel=0.01)  # rtol: tester accuracy
-    assert r2.sensitivity == pytest.approx(2 / 3, abs=0.05)       # one-sided +10 % difference
+    assert [(x.action.part, x.verdict) for x in j.lift] == [("R1", "reliable"), ("R1", "reliable")]
 
 
 def test_equal_legs_prefer_the_less_crowded_net_common_practice():

@@ -80,7 +80,7 @@ def test_twin_capacitors_on_one_net_read_their_sum_hh_ch1():
     # parallel capacitances add; rtol 3 %: the tester's stated capacitance accuracy
     assert prediction.in_circuit.reading.value == pytest.approx(200e-6, rel=0.03)
     assert j.sensitivity.value == pytest.approx(0.5, abs=S_ATOL)  # S = C1/(C1+C2)
-    assert any("share nets +12V and 0: the reading is their sum (200 uF)" in r for r in j.reasons)
+    assert "C9 (100 uF) shares nets +12V and 0 with C8: the reading is their sum (200 uF)" in j.reasons
     faults = {f.fault.kind: f.detectable for f in j.faults}
     # C9 bypasses C8's series resistance: a high ESR of C8 cannot show (H&H ch.1)
     assert faults["esr"] is False
