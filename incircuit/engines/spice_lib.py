@@ -126,7 +126,7 @@ def _run_limited(ng) -> None:
         _command(ng, "run")
         if any("condition met" in line for line in ng._stderr):
             raise SimulationFailed(
-                f"ngspice needed more than {MAX_POINTS} time points for one step "
+                f"needed more than {MAX_POINTS} time points for one step "
                 "(a lightly damped resonance or a very stiff corner of the board)"
             )
     finally:
@@ -160,19 +160,19 @@ def run(deck: str, vectors: Sequence[str], stop: float) -> dict[str, np.ndarray]
             rc = ng._ngspice_shared.ngSpice_Circ(ffi.new("char *[]", [*keep, ffi.NULL]))
             problems = _errors(ng._stderr)
             if rc or problems:
-                raise SimulationFailed("ngspice rejected the circuit", problems or list(ng._stdout[-5:]))
+                raise SimulationFailed("rejected the circuit", problems or list(ng._stdout[-5:]))
             _run_limited(ng)
             messages = list(ng._stderr)
             plots = ng.plot_names
             plot = plots[0] if plots and plots[0].startswith("tran") else None
             time = _vector(ng, ffi, plot, "time") if plot else None
             if time is None or len(time) == 0 or time[-1] < stop * (1 - 1e-9):
-                raise SimulationFailed("ngspice stopped before the end of the step", _errors(messages) or messages)
+                raise SimulationFailed("stopped before the end of the step", _errors(messages) or messages)
             out = {"time": time}
             for name in vectors:
                 data = _vector(ng, ffi, plot, name)
                 if data is None:
-                    raise SimulationFailed(f"ngspice gave no vector {name}")
+                    raise SimulationFailed(f"gave no vector {name}")
                 out[name] = data
             return out
         finally:

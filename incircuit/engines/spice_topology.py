@@ -4,32 +4,39 @@ Two kinds of element carry no current and are merged away before ngspice
 sees the board:
 
 * 0-ohm resistors and 0-henry inductors (ties);
-* *bridges*: a two-terminal part whose removal cuts the board in two, with
-  the tester (its ground reaches every probe) on one side at most. By
-  Kirchhoff's current law nothing flows through it (only the 1e12 ohm
-  leaks), so a resistor, diode or uncoupled inductor drops no voltage and a
-  capacitor keeps its initial zero charge: its two nets are one. Left in,
-  such a part is a numerical trap: an inductor in series with nothing but
-  the leaks is a mode of L / 1e12 ohm, femtoseconds long.
-  A *coupled* inductor that is a bridge also carries no current but may
-  see an induced voltage; it is left out of the deck (with its couplings),
-  so its far side floats.
+* *dead* parts: parts outside every biconnected block of the board's graph
+  that holds the tester (joined to every probe) or a coupled inductor. A
+  dead part hangs off the live circuit at a single net, or lies in an
+  island no probe touches, so by Kirchhoff's current law no current flows
+  through it (only the 1e12 ohm leaks) and, starting discharged, every
+  resistor, diode and inductor drops no voltage and every capacitor keeps
+  zero charge: all its nets are one. Left in, such parts are a numerical
+  trap: an inductor in series with nothing but the leaks is a mode of
+  L / 1e12 ohm, femtoseconds long, and a loop of them makes ngspice's
+  time steps wander.
+
+A coupled inductor in a loop (or shorted: both ends on one net) is kept,
+since the coupling can drive a current around it; an open-ended winding
+carries none and is left out with its coupling (its far net then follows
+the near one: the induced open-circuit voltage is not computed).
 
 >>> from incircuit.circuit import Element, Circuit
 >>> chain = Circuit((Element("R1", "R", ("P", "Q"), 1e3), Element("L1", "L", ("Q", "X"), 1e-3),
 ...                  Element("C1", "C", ("X", "Y"), 1e-6)))
 >>> node_of, dropped = simplify(chain, ("P", "Q"))
->>> node_of["X"] == node_of["Y"] == node_of["Q"] != node_of["P"], dropped
-(True, set())
+>>> node_of["X"] == node_of["Y"] == node_of["Q"] != node_of["P"], sorted(dropped)
+(True, [1, 2])
 """
 
 from __future__ import annotations
 
 from typing import Iterable, Mapping, Sequence
 
+import networkx as nx
+
 from ..circuit import Circuit
 
-__all__ = ["Nets", "bridges", "simplify", "anchors", "ISLAND_C", "ISLAND_FRACTION"]
+__all__ = ["Nets", "simplify", "anchors", "ISLAND_C", "ISLAND_FRACTION"]
 
 #: Farads to the tester's ground on one net of each island without a probe's
 #: stray capacitance (at least; see ISLAND_FRACTION): keeps its common-mode
@@ -71,54 +78,17 @@ class Nets:
         return dict(sorted(out.items(), key=lambda kv: (int(kv[1][1:]), kv[0])))
 
 
-def bridges(edges: Sequence[tuple[str, str]]) -> set[int]:
-    """Indices of the edges whose removal disconnects their two ends.
-
-    Parallel edges are never bridges; self-loops are not bridges.
-
-    >>> sorted(bridges([("a", "b"), ("b", "c"), ("c", "a"), ("c", "d"), ("d", "e"), ("d", "e")]))
-    [3]
-    """
-    adjacent: dict[str, list[tuple[str, int]]] = {}
-    for k, (a, b) in enumerate(edges):
-        if a != b:
-            adjacent.setdefault(a, []).append((b, k))
-            adjacent.setdefault(b, []).append((a, k))
-    order: dict[str, int] = {}
-    low: dict[str, int] = {}
-    found: set[int] = set()
-    for start in adjacent:
-        if start in order:
-            continue
-        order[start] = low[start] = len(order)
-        stack = [(start, -1, iter(adjacent[start]))]
-        while stack:
-            node, via, it = stack[-1]
-            for nxt, k in it:
-                if k == via:
-                    continue
-                if nxt in order:
-                    low[node] = min(low[node], order[nxt])
-                else:
-                    order[nxt] = low[nxt] = len(order)
-                    stack.append((nxt, k, iter(adjacent[nxt])))
-                    break
-            else:
-                stack.pop()
-                if stack:
-                    parent = stack[-1][0]
-                    low[parent] = min(low[parent], low[node])
-                    if low[node] > order[parent]:
-                        found.add(via)
-    return found
-
-
 def _is_tie(kind: str, value: float | None) -> bool:
     return kind in ("R", "L") and value is not None and float(value) == 0.0
 
 
 def simplify(circuit: Circuit, probe_nets: Sequence[str]) -> tuple[dict[str, str], set[int]]:
-    """Board net -> node name after merging ties and bridges; element indices left out."""
+    """Board net -> node name after merging ties and dead parts; element indices left out.
+
+    A part is live when it lies in a biconnected block of the board's graph
+    (plus the tester, joined to every probe) that holds the tester, or a
+    loop with a coupled inductor; every other part carries no current.
+    """
     nets = Nets(probe_nets)
     for e in circuit.elements:
         for p in e.nodes:
@@ -126,31 +96,32 @@ def simplify(circuit: Circuit, probe_nets: Sequence[str]) -> tuple[dict[str, str
         if _is_tie(e.kind, e.value):
             nets.join(*e.nodes[:2])
     coupled = {name for c in circuit.couplings for name in c.inductors}
-    edges: list[tuple[str, str]] = []
-    owner: list[int | None] = []
+    graph = nx.Graph()
+    graph.add_edges_from((nets.find(p), _GROUND) for p in probe_nets)
+    edge_parts: dict[frozenset, list[int]] = {}
     for i, e in enumerate(circuit.elements):
         if e.kind not in _PARTS or _is_tie(e.kind, e.value):
             continue
-        roots = [nets.find(p) for p in e.nodes]
-        if e.kind in ("R", "C", "L", "D"):
-            edges.append((roots[0], roots[1]))
-            owner.append(i)
-        else:  # a transistor: a hub joins its pins, never merged
-            edges.extend((f"~hub{i}", r) for r in roots)
-            owner.extend([None] * len(roots))
-    for p in probe_nets:
-        edges.append((nets.find(p), _GROUND))
-        owner.append(None)
+        roots = {nets.find(p) for p in e.nodes}
+        pairs = [tuple(roots)] if len(roots) == 2 else [(f"~hub{i}", r) for r in roots] if len(roots) > 2 else []
+        for a, b in pairs:
+            graph.add_edge(a, b)
+            edge_parts.setdefault(frozenset((a, b)), []).append(i)
+    live: set[int] = set()
+    for block in nx.biconnected_component_edges(graph):
+        owners = {i for a, b in block for i in edge_parts.get(frozenset((a, b)), ())}
+        touches_tester = any(_GROUND in (a, b) for a, b in block)
+        loop = len(block) > 1 or len(owners) > 1  # current can circulate
+        if touches_tester or (loop and any(circuit.elements[i].name in coupled for i in owners)):
+            live |= owners
     dropped: set[int] = set()
-    for k in bridges(edges):
-        i = owner[k]
-        if i is None:
-            continue
-        e = circuit.elements[i]
-        if e.kind == "L" and e.name in coupled:
+    for i, e in enumerate(circuit.elements):
+        if e.kind in _PARTS and not _is_tie(e.kind, e.value) and i not in live:
+            if e.kind == "L" and e.name in coupled and len({nets.find(p) for p in e.nodes}) == 1:
+                continue  # a shorted winding still carries current
             dropped.add(i)
-        else:
-            nets.join(*e.nodes[:2])
+            for p in e.nodes[1:]:
+                nets.join(e.nodes[0], p)
     return nets.names(), dropped
 
 

@@ -227,3 +227,46 @@ def test_wrong_drive_length_is_rejected():
     session = ENGINE.open(rc_board(1e3, 1e-6), ("IN", "GND"), 0.0)
     with pytest.raises(ValueError):
         session.run((Source(1.0, VS),), 1e-6)
+
+
+def _rl_crossing(board: Board) -> float:
+    session = ENGINE.open(board, ("A", "B"), 30e-12)
+    step = session.run((Source(22.0, VS), Source(20.0, 0.0)), 1e-3, watch=Watch(1, 1.1))
+    assert step.crossed
+    return step.duration
+
+
+def test_parts_hanging_off_one_net_change_nothing():
+    # Kirchhoff's current law: a loop or chain attached at a single net carries no current
+    l1 = Part("L1", "L", ("A", "B"), 2.7e-3, params={"dcr": 0.45})
+    alone = _rl_crossing(Board("l", (l1,)))
+    hanging = Board("l", (l1, Part("L2", "L", ("A", "X"), 0.7e-3, params={"dcr": 0.1}),
+                          Part("L3", "L", ("X", "Y"), 72e-6, params={"dcr": 10.8}),
+                          Part("L4", "L", ("Y", "A"), 2.8e-3), Part("C9", "C", ("Y", "Z"), 1e-6),
+                          Part("L5", "L", ("Z", "W"), 1e-3)))
+    # i(t) = Vs/R (1 - exp(-t R/L)) crossing 1.1 V on 20 ohm (Horowitz & Hill ch. 1)
+    r = 22.0 + 20.0 + 0.45
+    expected = -2.7e-3 / r * math.log(1 - 1.1 / 20.0 * r / VS)
+    assert alone == pytest.approx(expected, rel=1e-3)  # the stray capacitance shifts it by ~1e-6 s/ms
+    assert _rl_crossing(hanging) == pytest.approx(alone, rel=1e-4)
+
+
+def test_open_winding_does_not_load_its_partner():
+    l1 = Part("L1", "L", ("A", "B"), 2.7e-3, params={"dcr": 0.45})
+    alone = _rl_crossing(Board("l", (l1,)))
+    open_secondary = Board("t", (l1, Part("L2", "L", ("S", "T"), 1e-3),
+                                 Part("K1", "K", (), 0.95, params={"inductors": ("L1", "L2")})))
+    assert _rl_crossing(open_secondary) == pytest.approx(alone, rel=1e-4)
+    # a loaded secondary reflects its load: the primary's current rises faster
+    loaded = Board("t", (*open_secondary.parts, Part("RL", "R", ("S", "T"), 10.0)))
+    assert _rl_crossing(loaded) < 0.5 * alone
+
+
+def test_run_that_needs_too_many_points_is_an_engine_error(monkeypatch):
+    from incircuit.engines import spice_lib
+
+    monkeypatch.setattr(spice_lib, "MAX_POINTS", 50)
+    session = ENGINE.open(rc_board(1e3, 1e-6), ("IN", "GND"), 30e-12)
+    with pytest.raises(EngineError) as info:
+        session.run((Source(680.0, VS), Source(0.0, 0.0)), 10e-3)
+    assert "time points" in str(info.value) and "--engine analytic" in info.value.hint
