@@ -47,7 +47,7 @@ from ..circuit import Circuit, Element, elements
 from ..errors import EngineError
 from ..model import Board, Model
 from .base import Drive
-from .spice_topology import ISLAND_C, ISLAND_FRACTION, anchors, simplify
+from .spice_topology import ISLAND_C, ISLAND_FRACTION, Nets, anchors, simplify
 
 __all__ = ["Deck", "build", "number", "LEAK", "ISLAND_C", "ISLAND_FRACTION", "MIN_SOURCE_R", "MODEL_TYPES"]
 
@@ -128,6 +128,9 @@ class Deck:
     inductors: tuple[str, ...]
     #: (node, farads) on one node of each island that no probe's stray holds.
     anchors: tuple[tuple[str, float], ...]
+    #: Board nets reported in results: those that parts join to a probe, and
+    #: the probe nets (not the internal ESR/DCR nets).
+    reported: tuple[str, ...]
     #: Element or model identifier -> what the user calls it ("D3", ".model DX of D3").
     blame: Mapping[str, str]
 
@@ -137,8 +140,8 @@ class Deck:
         return tuple(n for n, k in self.node_of.items() if k == node)
 
     def net_volts(self, volts: Mapping[str, float]) -> dict[str, float]:
-        """Node voltages as board net voltages."""
-        return {net: float(volts.get(node, 0.0)) for net, node in self.node_of.items()}
+        """Node voltages as the voltages of the :attr:`reported` board nets."""
+        return {net: float(volts.get(self.node_of[net], 0.0)) for net in self.reported}
 
     # -- one step ---------------------------------------------------------
     def element_lines(self, volts: Mapping[str, float], currents: Mapping[str, float]) -> list[str]:
@@ -366,5 +369,15 @@ def build(board: Board, probe_nets: Sequence[str], stray: float) -> Deck:
         lines=tuple(lines),
         inductors=tuple(inductors),
         anchors=anchors(circuit, node_of, probe_nodes, probe_nodes if stray > 0 else ()),
+        reported=_reported(board, circuit, probe_nets),
         blame=blame,
     )
+
+
+def _reported(board: Board, circuit: Circuit, probe_nets: Sequence[str]) -> tuple[str, ...]:
+    joined = Nets(probe_nets)
+    for e in circuit.elements:
+        for p in e.nodes[1:]:
+            joined.join(e.nodes[0], p)
+    roots = {joined.find(p) for p in probe_nets}
+    return tuple(n for n in sorted({*board.nets, *probe_nets}) if joined.find(n) in roots)

@@ -270,3 +270,10 @@ def test_run_that_needs_too_many_points_is_an_engine_error(monkeypatch):
     with pytest.raises(EngineError) as info:
         session.run((Source(680.0, VS), Source(0.0, 0.0)), 10e-3)
     assert "time points" in str(info.value) and "--engine analytic" in info.value.hint
+
+
+def test_reported_nets_are_the_board_nets_joined_to_a_probe():
+    board = Board("n", (Part("C1", "C", ("A", "B"), 1e-6, params={"esr": 0.5}),
+                        Part("R1", "R", ("B", "M"), 1e3), Part("R2", "R", ("X", "Y"), 1e3)))
+    step = ENGINE.open(board, ("A", "B"), 30e-12).run((Source(680.0, VS), Source(20.0, 0.0)), 1e-4)
+    assert set(step.nets) == {"A", "B", "M"}  # no C1~ESR, no island X-Y
