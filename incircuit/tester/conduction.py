@@ -68,34 +68,34 @@ class Undischargeable(Exception):
 
 
 def discharge(bench: Bench, name: str = "discharge") -> bool:
-    """Discharge the part; False when it cannot be done within the timeout."""
+    """Discharge the part; False when it cannot be done within the timeout.
+
+    Each stage ties every probe to 0 V and watches the probe that reads
+    highest until it falls below the stage's level (a watch already past
+    its level ends the step at once), then reads every probe again.
+    """
     p = bench.profile
     budget = p.discharge_timeout_seconds
     probes = range(bench.n_probes)
+    last = bench.records[-1].result.volts if bench.records else (0.0,) * bench.n_probes
+    volts = [bench.adc(v).volts for v in last]
     for via, level in (("low", p.discharge_direct_volts), ("port", p.discharge_target_volts)):
         drive = bench.drive({i: ("low", via) for i in probes})
-        rec = bench.run(f"{name} ({via})", drive, p.discharge_check_seconds,
-                        sampled="every probe", formula=f"all probes below {level:g} V")
-        budget -= rec.result.duration
-        if via == "low" and max(bench.adc(v).volts for v in rec.result.volts) < p.discharge_target_volts:
-            return True
-        for _ in probes:
-            volts = [bench.adc(v).volts for v in rec.result.volts]
+        for _ in range(bench.n_probes + 1):
             top = max(probes, key=lambda i: volts[i])
-            if volts[top] < level:
-                break
-            if budget <= 0:
-                return False
-            rec = bench.run(f"{name} ({via})", drive, budget, watch=Watch(top, level, rising=False),
-                            sampled=f"probe {top + 1} until below {level:g} V",
-                            formula="watch: probe falls below the level")
+            rec = bench.run(f"{name} ({via})", drive, max(budget, 0.0), watch=Watch(top, level, rising=False),
+                            sampled=f"probe {top + 1} until below {level:g} V, then every probe",
+                            formula=f"all probes below {level:g} V")
             budget -= rec.result.duration
-            if not rec.result.crossed:
+            volts = [bench.adc(v).volts for v in rec.result.volts]
+            if max(volts) < p.discharge_target_volts:
+                return True
+            if max(volts) < level:
+                break
+            if budget <= 0 or not rec.result.crossed:
                 return False
         else:
-            volts = [bench.adc(v).volts for v in rec.result.volts]
-            if max(volts) >= level:
-                return False
+            return False
     return True
 
 
@@ -133,9 +133,10 @@ def pulse(bench: Bench, high: int, low: int, level: str) -> Pulse:
     if rising:
         hold = bench.run(f"hold {high + 1} ({level} resistor)",
                          bench.drive({low: ("low", "port")}), p.conduction_hold_seconds,
-                         sampled=f"probe {high + 1} floating", formula="kept >= hold_fraction * V")
+                         sampled=f"probe {high + 1} floating",
+                         formula="|V - kept| <= (1 - hold_fraction) |V| + 2 counts")
         kept = bench.adc(hold.result.volts[high]).volts - bench.adc(hold.result.volts[low]).volts
-        holding = kept >= p.conduction_hold_fraction * v_end
+        holding = abs(v_end - kept) <= (1.0 - p.conduction_hold_fraction) * abs(v_end) + 2 * lsb
     return Pulse(level, v_mid, v_end, max(current, 0.0), conducting, rising, holding, lsb,
                  (a_end.volts, b_end.volts))
 

@@ -73,7 +73,6 @@ class Profile:
     timer_tick_seconds: float = _k("timer", "tick_seconds", hi=1e-3)
     discharge_target_volts: float = _k("discharge", "target_volts", hi=1.0)
     discharge_direct_volts: float = _k("discharge", "direct_volts", hi=100.0)
-    discharge_check_seconds: float = _k("discharge", "check_seconds", hi=1.0)
     discharge_timeout_seconds: float = _k("discharge", "timeout_seconds", hi=60.0)
     conduction_low_seconds: float = _k("conduction", "low_seconds", hi=10.0)
     conduction_high_seconds: float = _k("conduction", "high_seconds", hi=10.0)
