@@ -261,11 +261,27 @@ class Combo:
         fast = ~slow
         lf = lam[fast]
         qf = q[:, fast] / lf
-        self.lf = lf
-        self.a = p[:, fast] + qf
+        a = p[:, fast] + qf
         self.c = c - qf.sum(axis=1).real
+        if np.iscomplexobj(lf):
+            # a real matrix has conjugate pairs with conjugate coefficients:
+            # Re(a e^{lam t} + conj) = 2 Re(a e^{lam t}); keep Im(lam) >= 0 only
+            upper = lf.imag >= 0
+            a = a[:, upper] * np.where(lf[upper].imag > 0, 2.0, 1.0)
+            lf = lf[upper]
+        self.lf, self.a = lf, a
         self.ls, self.ps, self.qs = lam[slow], p[:, slow], q[:, slow]
         self.real = real and not np.iscomplexobj(self.a)
+
+    def ringing(self) -> np.ndarray:
+        """Mask of the ringing modes with at least 1e-3 of some row's total swing."""
+        if not np.iscomplexobj(self.lf) or not len(self.lf):
+            return np.zeros(len(self.lf), dtype=bool)
+        amp = np.abs(self.a)
+        share = amp / np.maximum(amp.sum(axis=1, keepdims=True), 1e-300)
+        return (share >= 1e-3).any(axis=0) & (self.lf.imag > 0)
+
+
 
     def __call__(self, t: np.ndarray) -> np.ndarray:
         t = np.asarray(t, dtype=float)
@@ -275,6 +291,24 @@ class Combo:
             tp = t[:, None] * (1.0 + u * (0.5 + u * (1.0 / 6.0 + u / 24.0)))
             out = out + np.exp(u) @ self.ps.T + tp @ self.qs.T
         return self.c + (out if self.real else out.real)
+
+    def reachable(self, horizon: float) -> np.ndarray:
+        """Rows that can reach 0 within ``[0, horizon]``, by the bound
+        ``c + sum |a_k| max(1, e^{Re lam_k horizon})`` (and the like for slow modes)."""
+        grow = np.exp(np.maximum(self.lf.real, 0.0) * horizon)
+        bound = self.c + np.abs(self.a) @ grow
+        if len(self.ls):
+            gs = np.exp(np.maximum(self.ls.real, 0.0) * horizon) * 1.01
+            bound = bound + np.abs(self.ps) @ gs + np.abs(self.qs) @ (gs * horizon)
+        return bound >= 0
+
+    def subset(self, rows: np.ndarray) -> "Combo":
+        """The same functions for ``rows`` only."""
+        out = object.__new__(Combo)
+        out.lf, out.a, out.c = self.lf, self.a[rows], self.c[rows]
+        out.ls, out.ps, out.qs = self.ls, self.ps[rows], self.qs[rows]
+        out.real = self.real
+        return out
 
     def row(self, k: int):
         lf, a, c = self.lf, self.a[k], float(self.c[k])
@@ -399,6 +433,22 @@ def first_event(combo, t_end: float, rates: np.ndarray) -> tuple[float, int] | N
     touches 0 only by rounding (the scalar re-evaluation disagrees with the
     grid) is passed over in that interval.
     """
+    index = None
+    if hasattr(combo, "reachable"):
+        index = np.flatnonzero(combo.reachable(t_end))
+        if not len(index):
+            return None
+        combo = combo.subset(index)
+    found = _first_event(combo, t_end, rates)
+    if found is None or index is None:
+        return found
+    return found[0], int(index[found[1]])
+
+
+def _first_event(combo, t_end: float, rates: np.ndarray) -> tuple[float, int] | None:
+    if hasattr(combo, "ringing"):
+        ring = combo.ringing()
+        rates = np.where(ring, combo.lf, combo.lf.real) if len(combo.lf) else np.zeros(0)
     grid = time_grid(rates, t_end)
     vals = combo(grid)
     if vals.size == 0:
