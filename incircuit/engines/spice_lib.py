@@ -19,6 +19,7 @@ Only :func:`run` talks to ngspice; a lock keeps it to one thread at a time.
 
 from __future__ import annotations
 
+import ctypes.util
 import logging
 import os
 import tempfile
@@ -74,6 +75,12 @@ def _start() -> object:
         try:
             from PySpice.Spice.NgSpice.Shared import NgSpiceShared
 
+            if "NGSPICE_LIBRARY_PATH" not in os.environ:
+                # the runtime package's soname (libngspice.so.0) when the
+                # development symlink libngspice.so that PySpice asks for is absent
+                found = ctypes.util.find_library("ngspice")
+                if found:
+                    NgSpiceShared.LIBRARY_PATH = found
             return NgSpiceShared.new_instance()
         finally:
             os.chdir(cwd)
