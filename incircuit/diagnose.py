@@ -378,12 +378,16 @@ def _decide(part: str, ranked: Sequence[Scored], groups: Sequence[tuple[str, flo
             f"no explanation fits: even the likeliest, {best.hypothesis.label()}, predicts "
             f"{_describe(best.predicted[0])}; check the probe nets, the board and its netlist")
     runner_text = "a healthy board" if runner == "healthy" else runner
-    odds = "no other explanation" if math.isinf(ratio) else f"{ratio:.0f}x {runner_text}"
+    times = f"{ratio:.0f}x" if ratio < 1000 else "over 1000x"
+    odds = "no other explanation" if math.isinf(ratio) else f"{times} {runner_text}"
     if ratio < MARGIN:
-        lead_text = "a healthy board" if lead == "healthy" else lead_best.hypothesis.label()
+        pair = _leaders(ranked, groups)
+        lead_text, second_text = ("a healthy board" if s.group == "healthy" else s.hypothesis.label()
+                                  for s in pair)
         return "inconclusive", (
-            f"{lead_text} ({_pct(mass)}) and {runner_text} ({_pct(runner_mass)}) explain the "
-            f"readings about equally well (odds {ratio:.1f}:1, below {MARGIN:g}:1)")
+            f"{lead_text} ({_pct(mass)} for {_group_text(lead)}) and {second_text} "
+            f"({_pct(runner_mass)} for {_group_text(runner)}) explain the readings about equally "
+            f"well (odds {ratio:.1f}:1, below {MARGIN:g}:1)")
     if lead == "healthy":
         return "leave-in-place", f"a healthy board explains the readings ({_pct(mass)}; {odds})"
     if lead == part:
@@ -392,6 +396,10 @@ def _decide(part: str, ranked: Sequence[Scored], groups: Sequence[tuple[str, flo
             f"of {part}; {odds})")
     return "look-elsewhere", (
         f"{lead} is the likelier culprit: {lead_best.hypothesis.label()} ({_pct(mass)}; {odds})")
+
+
+def _group_text(group: str) -> str:
+    return "a healthy board" if group == "healthy" else f"a fault of {group}"
 
 
 def _describe(reading: Reading | None) -> str:
