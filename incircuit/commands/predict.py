@@ -14,6 +14,10 @@ names, probe 1 first), ``engine``, ``isolated`` and ``in_circuit``, each
 --between), ``uncertain`` (reasons the prediction rests on guessed or
 unknown pin roles of unmodelled parts; empty when none, docs/pin-roles.md).
 The tester model and its profile keys: docs/tester-model.md.
+
+For a PART the judge adds (unless --no-judge) ``verdict`` (reliable,
+predictable or masked), ``sensitivity``, ``reasons``, ``faults``, ``lift``
+and ``advice`` (bench instruments); docs/verdicts.md explains them.
 """
 
 from __future__ import annotations
@@ -26,6 +30,7 @@ from typing import Sequence
 from ..chips import uncertainty_reasons
 from ..engines import ENGINES
 from ..errors import EngineError, InputError
+from ..judge import judge
 from ..model import Reading
 from ..predict import Prediction, predict, predict_between
 from ..safety import caution_lines
@@ -65,6 +70,8 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--engine", choices=tuple(ENGINES), default="analytic",
                         help="simulation engine (default: analytic)")
     add_board_arguments(parser, board=False)
+    parser.add_argument("--no-judge", action="store_true",
+                        help="only the readings: no verdict, faults, lift plan or instrument advice")
     parser.add_argument("--json", action="store_true", help="print one JSON object")
 
 
@@ -91,10 +98,15 @@ def run(args: argparse.Namespace) -> int:
         print(f"incircuit: {what}: {error.message}{hint}", file=sys.stderr)
         return 1
     uncertain = uncertainty_reasons(board, found.probes)
+    judged = None
+    if args.part and not args.no_judge:
+        judged = judge(board, found.part, found, profile, args.engine)  # type: ignore[arg-type]
     if args.json:
-        print(json.dumps({**found.to_dict(), "uncertain": uncertain}, indent=2))
+        print(json.dumps({**found.to_dict(), "uncertain": uncertain,
+                          **(judged.to_dict() if judged else {})}, indent=2))
     else:
-        print("\n".join(prediction_lines(found, profile, board.name, uncertain)))
+        print("\n".join(prediction_lines(found, profile, board.name, uncertain,
+                                          judged.text_lines() if judged else ())))
     return 0
 
 
@@ -125,8 +137,9 @@ def reading_text(reading: Reading, profile: Profile | None = None) -> str:
 
 
 def prediction_lines(found: Prediction, profile: Profile | None = None, board: str = "",
-                     uncertain: Sequence[str] = ()) -> list[str]:
-    """The text report of one prediction; ``uncertain``: why it rests on guessed pin roles."""
+                     uncertain: Sequence[str] = (), judged: Sequence[str] = ()) -> list[str]:
+    """The text report of one prediction; ``uncertain``: why it rests on guessed pin roles;
+    ``judged``: the judge's lines, printed before the safety cautions."""
     probes = ", ".join(f"{i} on {net}" for i, net in enumerate(found.probes, 1))
     head = f"{found.part}" if found.part else "between nets"
     lines = [f"Board: {board}" if board else "", f"{head}: probe {probes} (engine {found.engine})"]
@@ -141,5 +154,6 @@ def prediction_lines(found: Prediction, profile: Profile | None = None, board: s
             change = "-" if diff is None else f"{diff * 100:+.1f} %"
         lines.append(f"  difference:  {change}")
     lines += [f"  {reason}" for reason in uncertain]
+    lines += ["", *judged] if judged else []
     lines += ["", *caution_lines()]
     return [line for i, line in enumerate(lines) if line or i > 0]

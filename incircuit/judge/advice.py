@@ -45,7 +45,7 @@ from ..units import format_value
 from .band import part_tolerance
 from .runs import with_model_param
 from .thresholds import (
-    BENCH_MIN_SENSITIVITY, CONDUCTING_CURRENT, JUNCTION_IS_FACTOR, MAX_GUARD_NETS, METER_JUNCTION_SHARE,
+    BENCH_MIN_SENSITIVITY, CONDUCTING_CURRENT, MAX_GUARD_NETS, METER_JUNCTION_SHARE,
     PERTURBATION, SEMICONDUCTOR_PARAMETER,
 )
 
@@ -178,10 +178,10 @@ def _diode_advice(profile: BenchProfile, board: Board, part: Part, tol: tuple[fl
     here = diode_drop(board, anode, cathode, profile)
 
     def follows() -> float | None:
-        key, default = SEMICONDUCTOR_PARAMETER["D"]
+        key, default, factor = SEMICONDUCTOR_PARAMETER["D"]
         model = board.models.get(part.model or "")
         base = float(model.params.get(key, default)) if model is not None else default
-        changed = with_model_param(board, part.name, key, base * JUNCTION_IS_FACTOR)
+        changed = with_model_param(board, part.name, key, base * factor)
         ratio_alone = _ratio(alone.value, diode_drop(changed.only(part.name), anode, cathode, profile).value, 1)
         ratio_here = _ratio(here.value, diode_drop(changed, anode, cathode, profile).value, 1)
         return None if not ratio_alone or ratio_here is None else ratio_here / ratio_alone

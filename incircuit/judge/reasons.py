@@ -146,6 +146,7 @@ def path_reasons(board: Board, part: str, probes: Sequence[str], iso: Reading, i
     p = board.part(part)
     nets = list(dict.fromkeys(probes))
     out: list[str] = []
+    more: list[tuple[int, set, str, str]] = []
     for i, a in enumerate(nets):
         for b in nets[i + 1:]:
             found = between(board, a, b, without=(p.name,))
@@ -172,22 +173,31 @@ def path_reasons(board: Board, part: str, probes: Sequence[str], iso: Reading, i
             out += shown
             others = len(found.paths) - len(resistive[:limit]) - (1 if inductive else 0) - sum(
                 1 for q in found.paths if q.kind == "capacitive")
-            if others > 0 and found.paths:
-                kinds = sorted({q.kind for q in found.paths} - {"resistive", "capacitive"})
-                what = f" ({', '.join(kinds)})" if kinds else ""
-                out.append(f"{others} more paths{what} join {a} and {b}")
+            if others > 0:
+                more.append((others, {q.kind for q in found.paths} - {"resistive", "capacitive"}, a, b))
+    if more:
+        count = sum(m[0] for m in more)
+        kinds = sorted(set().union(*(m[1] for m in more)))
+        what = f" ({', '.join(kinds)})" if kinds else ""
+        where = f"{more[0][2]} and {more[0][3]}" if len(more) == 1 else "the probed nets"
+        out.append(f"{count} more paths{what} join {where}")
     if not out and iso.kind == inc.kind:
         out.append(f"nothing else on the board joins the probed nets of {p.name}")
     return out
 
 
 def junction_label(j: Junction) -> str:
-    """``"D6"``, ``"Q1 B-E"``, ``"XU1's protection diode at pin 2 (to its supply)"``."""
-    found = re.fullmatch(r"(.+)~P(\d+)~D([HL])\d+", j.name)
+    """``"D6"``, ``"Q1 B-E"``, ``"XU1's protection diode at pin 2 (to its supply)"``
+    (the names the pin-role models of unmodelled parts give their diodes)."""
+    found = re.fullmatch(r"(.+)~P(\d+)~D([HLB])\d*", j.name)
     if found:
-        side = "to its supply" if found.group(3) == "H" else "from its ground"
-        return f"{found.group(1)}'s protection diode at pin {found.group(2)} ({side})"
-    return j.name if j.part in (j.name, "") or j.name.startswith(j.part + " ") else f"{j.name} (of {j.part})"
+        side = {"H": " (to its supply)", "L": " (from its ground)", "B": ""}[found.group(3)]
+        return f"{found.group(1)}'s protection diode at pin {found.group(2)}{side}"
+    if re.fullmatch(r".+~S\d+~D\d+", j.name):
+        return f"{j.part}'s diode from ground to supply"
+    if j.part in (j.name, "") or j.name.startswith(j.part + " "):
+        return j.name
+    return f"a junction of {j.part} ({j.name})"
 
 
 @dataclass(frozen=True)
@@ -235,9 +245,8 @@ def conducting_junctions(board: Board, run, minimum: float = CONDUCTING_CURRENT,
 
 def current_share(board: Board, part: str, run) -> tuple[float, float, float] | None:
     """(share of the probe current through ``part``, that current, probe
-    current) for a resistor (in the step that drove the most current) or a
-    diode (in the step where it carried the most), whose current follows
-    from its pins' voltages."""
+    current) in the step where the part carried the most current, for a
+    resistor or a diode, whose current follows from its pins' voltages."""
     p = board.part(part)
     if p.kind not in ("R", "D") or len(p.pins) != 2:
         return None
@@ -254,22 +263,22 @@ def current_share(board: Board, part: str, run) -> tuple[float, float, float] | 
         if p.kind == "R":
             if not p.value:
                 continue
-            i, rank = abs(v) / p.value, total
+            i = abs(v) / p.value
         else:
             i = max(js[0].current(v), 0.0) if js else 0.0
-            rank = i
-        if best is None or rank > best[3]:
-            best = (min(i / total, 1.0), i, total, rank)
-    return best[:3] if best is not None else None
+        if best is None or i > best[1]:
+            best = (min(i / total, 1.0), i, total)
+    return best
 
 
-def junction_reasons(conducting: Iterable[Conduction], part: str, iso: Reading, inc: Reading) -> list[str]:
-    """``"D2 conducts at about 0.6 V under the tester's drive: ..."``"""
+def junction_reasons(conducting: Iterable[Conduction], part: str, iso: Reading, inc: Reading,
+                     limit: int = 3) -> list[str]:
+    """``"D2 conducts at about 0.6 V under the tester's drive: ..."``, the
+    ``limit`` strongest, then how many more."""
     out = []
     own = part.upper()
-    for c in conducting:
-        if c.junction.part == own:
-            continue
+    others = [c for c in conducting if c.junction.part != own]
+    for c in others[:limit]:
         text = (f"{junction_label(c.junction)} conducts at about {format_value(c.volts, 'V', 2)} "
                 f"under the tester's drive")
         if inc.kind in ("diode", "diode-pair") and iso.kind not in ("diode", "diode-pair"):
@@ -277,6 +286,8 @@ def junction_reasons(conducting: Iterable[Conduction], part: str, iso: Reading, 
         else:
             text += f", taking {c.share * 100:.0f} % of the probe current"
         out.append(text)
+    if len(others) > limit:
+        out.append(f"{len(others) - limit} more junctions conduct under the tester's drive")
     return out
 
 

@@ -33,9 +33,9 @@ from typing import Sequence
 from ..model import Board, Part, Reading
 from .band import part_tolerance
 from .runs import Runs, with_model_param
-from .thresholds import JUNCTION_IS_FACTOR, PERTURBATION, SEMICONDUCTOR_PARAMETER, TOLERANCE_STEP_RANGE
+from .thresholds import PERTURBATION, SEMICONDUCTOR_PARAMETER, TOLERANCE_STEP_RANGE
 
-__all__ = ["Sensitivity", "sensitivity", "ratio", "perturbed_boards", "value_step"]
+__all__ = ["Sensitivity", "sensitivity", "one_sided", "ratio", "perturbed_boards", "value_step"]
 
 
 def value_step(part: Part) -> float:
@@ -90,10 +90,10 @@ def perturbed_boards(board: Board, part: str, up: bool) -> tuple[Board, str, flo
         factor = 1.0 + step if up else 1.0 - step
         return board.with_part(p.with_value(p.value * factor)), "value", factor
     if p.kind in SEMICONDUCTOR_PARAMETER:
-        key, default = SEMICONDUCTOR_PARAMETER[p.kind]
+        key, default, step = SEMICONDUCTOR_PARAMETER[p.kind]
         model = board.models.get(p.model or "")
         base = float(model.params.get(key, default)) if model is not None else default
-        factor = JUNCTION_IS_FACTOR if up else 1.0 / JUNCTION_IS_FACTOR
+        factor = step if up else 1.0 / step
         return with_model_param(board, p.name, key, base * factor), key, factor
     raise ValueError(f"{p.name}: nothing to perturb")
 
@@ -113,7 +113,7 @@ def sensitivity(runs: Runs, board: Board, part: str, probes: Sequence[str], base
         return Sensitivity(ratio(base, plus, minus, 2 * step), what, step, plus, minus)
     # a semiconductor: refer the in-circuit change to the isolated change, the
     # part alone probed on the same nets (or on its own pins if a probe is elsewhere)
-    own = tuple(probes) if all(n in p.pins for n in probes) else tuple(p.pins[:len(probes)])
+    own = _own_probes(p, probes)
     iso = iso if iso is not None else runs.isolated(board, p.name, own)
     if iso is None:
         return Sensitivity(None, what, 0.0, plus, minus)
@@ -124,3 +124,26 @@ def sensitivity(runs: Runs, board: Board, part: str, probes: Sequence[str], base
     if iso_span in (None, 0.0) or in_span is None:
         return Sensitivity(None, what, 0.0, plus, minus)
     return Sensitivity(in_span / iso_span, what, abs(iso_span) / 2, plus, minus)
+
+
+def _own_probes(p: Part, probes: Sequence[str]) -> tuple[str, ...]:
+    return tuple(probes) if all(n in p.pins for n in probes) else tuple(p.pins[:len(probes)])
+
+
+def one_sided(runs: Runs, board: Board, part: str, probes: Sequence[str], base: Reading) -> float | None:
+    """S from the upward step alone (one run more; for a semiconductor two,
+    the isolated one being cheap): used for lift candidates."""
+    p = board.part(part)
+    try:
+        up, what, factor = perturbed_boards(board, p.name, True)
+    except ValueError:
+        return None
+    plus = runs.try_reading(up, probes)
+    if what == "value":
+        return ratio(base, plus, None, 2 * (factor - 1.0))
+    own = _own_probes(p, probes)
+    iso, iso_plus = runs.isolated(board, p.name, own), runs.isolated(up, p.name, own)
+    if iso is None:
+        return None
+    in_span, iso_span = ratio(base, plus, None, 2.0), ratio(iso, iso_plus, None, 2.0)
+    return None if not iso_span or in_span is None else in_span / iso_span

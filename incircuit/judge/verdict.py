@@ -18,7 +18,7 @@ Every identification run goes through one cache (:class:`.runs.Runs`).
 from __future__ import annotations
 
 import time
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from functools import partial
 from typing import Sequence
 
@@ -35,7 +35,7 @@ from .reasons import (
     reading_text, share_reason,
 )
 from .runs import Runs
-from .sensitivity import Sensitivity, perturbed_boards, ratio, sensitivity, value_step
+from .sensitivity import Sensitivity, one_sided, sensitivity
 from .thresholds import MASKED_SENSITIVITY, VERDICT_RANK
 
 __all__ = ["Judgement", "LiftOutcome", "judge", "classify", "reliable_window"]
@@ -146,21 +146,38 @@ class Judgement:
 
 def _band(runs: Runs, board: Board, part: Part, probes: Sequence[str], inc: Reading,
           sens: Sensitivity, accuracy) -> ToleranceBand:
+    """The in-circuit readings at the ends of the part's tolerance. A
+    tolerance smaller than the sensitivity step is interpolated between the
+    nominal and the perturbed readings (linear in the value, saving two
+    runs); a semiconductor uses its perturbed readings."""
     readings: list[Reading | None] = [inc]
     if part.kind in ("R", "C", "L") and part.value:
         minus, plus, _ = part_tolerance(part)
-        for factor in (1 - minus, 1 + plus):
-            readings.append(runs.try_reading(board.with_part(part.with_value(part.value * factor)), probes))
+        for factor, edge in ((1 - minus, sens.minus), (1 + plus, sens.plus)):
+            frac = abs(factor - 1) / sens.step if sens.step else 2.0
+            if frac <= 1.0 and edge is not None and edge.kind == inc.kind and None not in (
+                    edge.value, inc.value):
+                value = inc.value + (edge.value - inc.value) * frac  # type: ignore[operator]
+                readings.append(replace(edge, value=value))
+            else:
+                readings.append(runs.try_reading(board.with_part(part.with_value(part.value * factor)),
+                                                 probes))
     else:
         readings += [sens.plus, sens.minus]
     return ToleranceBand.of([r for r in readings if r is not None], accuracy)
 
 
 def _lift(runs: Runs, board: Board, part: Part, probes: Sequence[str], iso: Reading,
-          accuracy) -> list[LiftOutcome]:
+          accuracy, all_neighbours: bool = False) -> list[LiftOutcome]:
+    """Predict and rank the lift candidates. Neighbours are tried only when
+    no leg of the part itself makes the reading reliable (they could not
+    rank above it), unless ``all_neighbours``; then only those that do at
+    least as well are kept."""
     out: list[LiftOutcome] = []
     own_reliable = False
     for action in lift_candidates(board, part.name, probes):
+        if not action.own and own_reliable and not all_neighbours:
+            break  # own legs come first in the candidate list
         lifted, new_probes = action.apply(board, probes)
         reading = runs.try_reading(lifted, new_probes)
         if reading is None:
@@ -172,12 +189,7 @@ def _lift(runs: Runs, board: Board, part: Part, probes: Sequence[str], iso: Read
             continue  # a neighbour that does worse than the part's own leg: not worth a run more
         s = None
         if reading.kind == iso.kind and reading.value is not None and not inside:
-            try:
-                up, _, _ = perturbed_boards(lifted, part.name, True)
-            except ValueError:
-                up = None
-            if up is not None:
-                s = ratio(reading, runs.try_reading(up, new_probes), None, 2 * value_step(part))
+            s = one_sided(runs, lifted, part.name, new_probes, reading)
         verdict, _ = classify(iso, reading, s, part, accuracy(reading))
         own_reliable = own_reliable or (action.own and verdict == "reliable")
         out.append(LiftOutcome(action, reading, verdict, tuple(new_probes), s))
@@ -195,7 +207,7 @@ def _lift(runs: Runs, board: Board, part: Part, probes: Sequence[str], iso: Read
 
 def judge(board: Board, part: str, prediction, profile, engine: str = "analytic",
           probes: Sequence[str] | None = None, *, band: HealthyBand | None = None,
-          bench=None, identify=None) -> Judgement:
+          bench=None, identify=None, all_neighbours: bool = False) -> Judgement:
     """Judge ``part`` on ``probes`` (default: the prediction's probes).
 
     Parameters
@@ -212,6 +224,9 @@ def judge(board: Board, part: str, prediction, profile, engine: str = "analytic"
     identify
         The identification function (default :func:`incircuit.predict.identify`
         without trace samples, which the judge does not need).
+    all_neighbours
+        Try lifting neighbours even when a leg of the part itself already
+        makes the reading reliable (costs one run per neighbour).
     """
     started = time.perf_counter()
     if identify is None:
@@ -233,7 +248,7 @@ def judge(board: Board, part: str, prediction, profile, engine: str = "analytic"
     verdict, why = classify(iso, inc, sens.value, p, accuracy(inc))
     healthy = band if band is not None else _band(runs, board, p, probes, inc, sens, accuracy)
     faults = fault_outcomes(runs, board, p.name, probes, healthy)
-    lift = _lift(runs, board, p, probes, iso, accuracy)
+    lift = _lift(runs, board, p, probes, iso, accuracy, all_neighbours)
     advice = advise(board, p.name, probes, bench)
 
     run = prediction.in_circuit

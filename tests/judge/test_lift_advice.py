@@ -20,8 +20,8 @@ PROFILE = load_profile()
 DX = {"DX": Model("DX", "D", {"is": 1e-14, "n": 1.0})}
 
 
-def _judge(board: Board, part: str):
-    return judge(board, part, predict(board, part, profile=PROFILE), PROFILE, "analytic")
+def _judge(board: Board, part: str, **kw):
+    return judge(board, part, predict(board, part, profile=PROFILE), PROFILE, "analytic", **kw)
 
 
 def test_lift_plan_junction_path_beside_resistor():
@@ -30,7 +30,7 @@ def test_lift_plan_junction_path_beside_resistor():
     # lifting D1's leg on A or R2's leg on B breaks the path: all four read R1 alone.
     b = Board("t", (Part("R1", "R", ("A", "B"), 10e3), Part("D1", "D", ("A", "C"), model="DX"),
                     Part("R2", "R", ("C", "B"), 100.0)), DX)
-    j = _judge(b, "R1")
+    j = _judge(b, "R1", all_neighbours=True)
     assert j.verdict == "masked"
     plan = [(x.action.part, x.action.pin, x.verdict) for x in j.lift]
     assert plan[:2] == [("R1", 1, "reliable"), ("R1", 2, "reliable")]
@@ -39,6 +39,8 @@ def test_lift_plan_junction_path_beside_resistor():
     assert leg1.probes == ("R1.PIN1~LIFTED", "B")
     # rtol 1 %: the tester's divider reading of 10 kohm
     assert leg1.reading.value == pytest.approx(10e3, rel=0.01)
+    # by default the neighbours are not tried once the part's own leg is reliable
+    assert [x.action.part for x in _judge(b, "R1").lift] == ["R1", "R1"]
 
 
 def test_lift_plan_ranks_neighbours_by_verdict_hh_ch1():
@@ -66,7 +68,7 @@ def test_neighbours_worse_than_own_leg_are_left_out():
     # lifting R2 (leaving 10k || 20k) or R3 (leaving 10k || 100) does worse
     b = Board("t", (Part("R1", "R", ("A", "B"), 10e3, tolerance=Tolerance.symmetric(0.05)),
                     Part("R2", "R", ("A", "B"), 100.0), Part("R3", "R", ("A", "B"), 20e3)))
-    j = _judge(b, "R1")
+    j = _judge(b, "R1", all_neighbours=True)
     assert [(x.action.part, x.verdict) for x in j.lift] == [("R1", "reliable"), ("R1", "reliable")]
 
 
