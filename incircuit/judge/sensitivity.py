@@ -6,7 +6,7 @@
   ``S = (r+ - r-) / r0 / (2 d)``, with ``d`` from :func:`value_step`.
 * D, Q, M, J: the model parameter of ``SEMICONDUCTOR_PARAMETER`` (a
   diode's saturation current, a transistor's forward gain, a FET's
-  transconductance) times and divided by a factor; the change of the
+  threshold or pinch-off voltage) times and divided by a factor; the change of the
   in-circuit reading is referred to the change of the isolated reading,
   ``S = ((i+ - i-)/i0) / ((a+ - a-)/a0)``, since such a part's "value" is
   what it reads alone.
@@ -93,6 +93,8 @@ def perturbed_boards(board: Board, part: str, up: bool) -> tuple[Board, str, flo
         key, default, step = SEMICONDUCTOR_PARAMETER[p.kind]
         model = board.models.get(p.model or "")
         base = float(model.params.get(key, default)) if model is not None else default
+        if base == 0.0:
+            raise ValueError(f"{p.name}: {key} is zero, nothing to scale")
         factor = step if up else 1.0 / step
         return with_model_param(board, p.name, key, base * factor), key, factor
     raise ValueError(f"{p.name}: nothing to perturb")
@@ -106,7 +108,8 @@ def sensitivity(runs: Runs, board: Board, part: str, probes: Sequence[str], base
         up, what, _ = perturbed_boards(board, p.name, True)
         down, _, _ = perturbed_boards(board, p.name, False)
     except ValueError:
-        return Sensitivity(None, "value", 0.0)
+        what = SEMICONDUCTOR_PARAMETER[p.kind][0] if p.kind in SEMICONDUCTOR_PARAMETER else "value"
+        return Sensitivity(None, what, 0.0)
     plus, minus = runs.try_reading(up, probes), runs.try_reading(down, probes)
     if what == "value":
         step = value_step(p)

@@ -60,15 +60,17 @@ TOLERANCE_STEP_RANGE = (0.05, 0.20)
 JUNCTION_IS_FACTOR = 4.0
 
 #: Part kind -> (model parameter scaled for the sensitivity, its SPICE
-#: default, the factor applied both ways). A transistor's gain and a FET's
-#: transconductance parameter move their readings in proportion, so 10 %
-#: suffices; a junction's saturation current moves its forward voltage only
-#: logarithmically, hence the larger factor.
+#: default, the factor applied both ways): the parameter the tester's
+#: reading of that kind follows. A transistor's gain (bf) and a FET's
+#: threshold or pinch-off voltage (vto) move their readings in proportion,
+#: so 10 % suffices; a junction's saturation current moves its forward
+#: voltage only logarithmically, hence the larger factor. A parameter that
+#: is zero cannot be scaled: no sensitivity is given then.
 SEMICONDUCTOR_PARAMETER = MappingProxyType({
     "D": ("is", 1e-14, JUNCTION_IS_FACTOR),
     "Q": ("bf", 100.0, 1.0 + PERTURBATION),
-    "M": ("kp", 2e-5, 1.0 + PERTURBATION),
-    "J": ("beta", 1e-4, 1.0 + PERTURBATION),
+    "M": ("vto", 0.0, 1.0 + PERTURBATION),
+    "J": ("vto", -2.0, 1.0 + PERTURBATION),
 })
 
 #: Tolerance of a part whose netlist line gives none (common practice: 5 %

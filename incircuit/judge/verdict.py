@@ -37,6 +37,7 @@ from .reasons import (
 from .runs import Runs
 from .sensitivity import Sensitivity, one_sided, sensitivity
 from .thresholds import MASKED_SENSITIVITY, VERDICT_RANK
+from .transistor import pins_reason, transistor_reasons
 
 __all__ = ["Judgement", "LiftOutcome", "judge", "classify", "reliable_window"]
 
@@ -255,6 +256,7 @@ def judge(board: Board, part: str, prediction, profile, engine: str = "analytic"
     reasons = [f"{p.name} is {verdict}: {why}", *uncertainty_reasons(board, probes),
                deviation_reason(p.name, iso, inc)]
     reasons += path_reasons(board, p.name, probes, iso, inc)
+    reasons += _transistor_words(board, p, iso, inc, profile)
     reasons += junction_reasons(conducting_junctions(board, run), p.name, iso, inc)
     share = share_reason(p.name, current_share(board, p.name, run))
     if share:
@@ -267,6 +269,16 @@ def judge(board: Board, part: str, prediction, profile, engine: str = "analytic"
                        f"(first: {runs.failures[0]})")
     return Judgement(p.name, probes, verdict, sens, tuple(dict.fromkeys(reasons)), tuple(faults),
                      tuple(lift), tuple(advice), healthy, cost)
+
+
+def _transistor_words(board: Board, part: Part, iso: Reading, inc: Reading, profile) -> list[str]:
+    """The bias network of a transistor in closed form (:mod:`.transistor`)."""
+    if part.kind not in ("Q", "M") or not hasattr(profile, "probe_ohms"):
+        return []
+    r_high = {k + 1: profile.port_high_ohms + profile.probe_ohms(k, "high") for k in range(3)}
+    out = transistor_reasons(board, part.name, iso, profile.supply_volts, r_high)
+    pins = pins_reason(iso, inc)
+    return out + ([pins] if pins else [])
 
 
 def _sensitivity_words(part: Part, sens: Sensitivity) -> str:
