@@ -99,7 +99,8 @@ def _shared() -> object:
             except ImportError as error:
                 _state["error"] = f"PySpice cannot be imported ({error})"
             except (OSError, NameError) as error:  # dlopen failure; ngSpice_Init refused
-                _state["error"] = f"the ngspice shared library cannot be loaded ({error})"
+                detail = str(error).split(".  ")[0]  # cffi appends a second, longer sentence
+                _state["error"] = f"the ngspice shared library cannot be loaded ({detail})"
         if "error" in _state:
             raise EngineError(str(_state["error"]), INSTALL_HINT)
         return _state["instance"]
