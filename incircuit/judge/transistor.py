@@ -170,10 +170,19 @@ def transistor_reasons(board: Board, part: str, iso: Reading, vs: float, r_high:
 
 
 def pins_reason(iso: Reading, inc: Reading) -> str | None:
-    """Why the reading cannot judge the part when the pins found differ."""
+    """Why the reading cannot judge the part when the pins found differ
+    (None when they agree).
+
+    >>> a = Reading("bjt-npn", 150.0, extra={"pins": {"B": 2, "C": 1, "E": 3}})
+    >>> b = Reading("bjt-npn", 31.0, extra={"pins": {"B": 2, "C": 3, "E": 1}})
+    >>> pins_reason(a, b)
+    'in circuit the tester finds the pins as B=2 C=3 E=1 instead of B=2 C=1 E=3'
+    """
     a, b = iso.extra.get("pins"), inc.extra.get("pins")
     if iso.kind != inc.kind or not isinstance(a, dict) or not isinstance(b, dict) or a == b:
         return None
+    if iso.extra.get("drain_source_interchangeable") and a.get("G") == b.get("G"):
+        return None  # a JFET's channel is symmetric: D and S either way round
     def words(pins: dict) -> str:
         return " ".join(f"{k}={v}" for k, v in pins.items())
     return f"in circuit the tester finds the pins as {words(b)} instead of {words(a)}"

@@ -17,6 +17,7 @@ Every identification run goes through one cache (:class:`.runs.Runs`).
 
 from __future__ import annotations
 
+import math
 import time
 from dataclasses import dataclass, field, replace
 from functools import partial
@@ -42,6 +43,18 @@ from .transistor import pins_reason, transistor_reasons
 __all__ = ["Judgement", "LiftOutcome", "judge", "classify", "reliable_window"]
 
 
+def _jsonable(value: object) -> object:
+    if isinstance(value, float):
+        return value if math.isfinite(value) else None
+    if isinstance(value, dict):
+        return {str(k): _jsonable(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_jsonable(v) for v in value]
+    if hasattr(value, "item") and callable(value.item):  # numpy scalars
+        return _jsonable(value.item())
+    return value
+
+
 def reliable_window(iso: Reading, part: Part, accuracy: float) -> tuple[float, float] | None:
     """Values an in-circuit reading may take and still count as the part's
     own: the isolated reading's tolerance band widened by ``accuracy``."""
@@ -53,11 +66,15 @@ def reliable_window(iso: Reading, part: Part, accuracy: float) -> tuple[float, f
 
 
 def classify(iso: Reading, inc: Reading, s: float | None, part: Part, accuracy: float) -> tuple[str, str]:
-    """``(verdict, why)``. Masked first (kind changes, or ``|S|`` below
+    """``(verdict, why)``. Masked first (kind changes, a transistor's pins
+    found differently, or ``|S|`` below
     :data:`~.thresholds.MASKED_SENSITIVITY`), then reliable (inside
     :func:`reliable_window`), else predictable."""
     if iso.kind != inc.kind:
         return "masked", f"the reading changes kind: {reading_text(inc)} instead of {reading_text(iso)}"
+    pins = pins_reason(iso, inc)
+    if pins:
+        return "masked", f"{pins}: the reading is not of the part's own junctions"
     if s is not None and abs(s) < MASKED_SENSITIVITY:
         return "masked", (f"the reading hardly follows {part.name} (sensitivity {s:.2f}, below "
                           f"{MASKED_SENSITIVITY:g}): a fault of {part.name} would not show")
@@ -111,8 +128,9 @@ class Judgement:
     cost: dict = field(default_factory=dict)
 
     def to_dict(self) -> dict:
+        """Plain JSON-ready data (non-finite numbers as None)."""
         band = self.band
-        return {
+        return _jsonable({
             "verdict": self.verdict,
             "sensitivity": self.sensitivity.value,
             "sensitivity_detail": self.sensitivity.to_dict(),
@@ -123,7 +141,7 @@ class Judgement:
             "advice": [a.to_dict() for a in self.advice],
             "advice_text": [a.text for a in self.advice],
             "cost": dict(self.cost),
-        }
+        })  # type: ignore[return-value]
 
     def text_lines(self) -> list[str]:
         """The judgement for people, one item per line."""
