@@ -6,8 +6,10 @@ rail, LED) into ``./incircuit-demo/`` (or DIR) and prints the fault
 coverage, the parts per verdict, the masked parts with the design change
 that would let a repair shop check them in place, and where the report is.
 Parts run in parallel processes, one per CPU core unless --jobs says
-otherwise. The options are those of ``incircuit survey``; --board picks
-another demo board.
+otherwise, and the healthy bands are the quick ones (each part's own
+tolerance) so the demo takes seconds; ``--depth standard`` adds the Monte
+Carlo bands of ``incircuit survey``. The other options are those of
+``incircuit survey``; --board picks another demo board.
 """
 
 from __future__ import annotations
@@ -37,7 +39,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         help=f"folder for the report (default: ./{DEFAULT_DIR}/)")
     parser.add_argument("--board", choices=tuple(DEMO_BOARDS), default=DEFAULT_DEMO,
                         help=f"which demo board (default: {DEFAULT_DEMO})")
-    add_survey_options(parser, jobs_default=_cores())
+    add_survey_options(parser, jobs_default=_cores(), depth_default="quick")
 
 
 def run(args: argparse.Namespace) -> int:

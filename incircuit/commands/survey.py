@@ -43,7 +43,8 @@ __all__ = ["add_arguments", "run", "add_survey_options", "survey_and_report", "d
            "print_outcome"]
 
 
-def add_survey_options(parser: argparse.ArgumentParser, jobs_default: int = 1) -> None:
+def add_survey_options(parser: argparse.ArgumentParser, jobs_default: int = 1,
+                       depth_default: str = "standard") -> None:
     """The options ``survey`` and ``demo`` share."""
     parser.add_argument("--engine", choices=tuple(ENGINES), default="analytic",
                         help="simulation engine (default: analytic)")
@@ -51,10 +52,10 @@ def add_survey_options(parser: argparse.ArgumentParser, jobs_default: int = 1) -
                         help="instrument profile (TOML; default: the shipped generic tester)")
     parser.add_argument("--jobs", metavar="N", type=int, default=jobs_default,
                         help=f"parts surveyed in parallel processes (default: {jobs_default})")
-    parser.add_argument("--depth", choices=tuple(DEPTHS), default="standard",
+    parser.add_argument("--depth", choices=tuple(DEPTHS), default=depth_default,
                         help="healthy band: quick = each part's tolerance only, standard = "
                         "Monte Carlo over all tolerances (few samples), full = more samples "
-                        "(default: standard; docs/survey.md)")
+                        f"(default: {depth_default}; docs/survey.md)")
     parser.add_argument("--samples", metavar="N", type=int,
                         help="Monte Carlo samples per probed pair of nets, overriding --depth "
                         "(0: tolerance band only)")

@@ -42,11 +42,11 @@ button.card:hover { border-color: var(--muted); }
 .controls .shown { color: var(--muted); margin-left: auto; }
 table { border-collapse: collapse; width: 100%; }
 th, td { text-align: left; padding: .35rem .5rem; border-bottom: 1px solid var(--line); vertical-align: top; }
-thead th { background: var(--soft); position: sticky; top: 2.9rem; z-index: 1; white-space: nowrap; }
-#parts-table thead th { cursor: pointer; user-select: none; }
-#parts-table thead th::after { content: " \\2195"; color: #aab3bb; font-size: .8em; }
-#parts-table thead th[aria-sort="ascending"]::after { content: " \\2191"; color: var(--ink); }
-#parts-table thead th[aria-sort="descending"]::after { content: " \\2193"; color: var(--ink); }
+thead th { background: var(--soft); white-space: nowrap; }
+#parts-table > thead th { position: sticky; top: 2.9rem; z-index: 1; cursor: pointer; user-select: none; }
+#parts-table > thead th::after { content: " \\2195"; color: #aab3bb; font-size: .8em; }
+#parts-table > thead th[aria-sort="ascending"]::after { content: " \\2191"; color: var(--ink); }
+#parts-table > thead th[aria-sort="descending"]::after { content: " \\2193"; color: var(--ink); }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
 tbody.part > tr.row:hover { background: var(--soft); }
 button.toggle { font: inherit; font-weight: 600; border: 0; background: none; cursor: pointer; padding: 0;
@@ -58,6 +58,8 @@ tr.detail > td { background: #fbfcfd; padding: .6rem 1rem 1rem; }
 .detail-grid > div { min-width: 0; }
 .detail table { font-size: .9rem; }
 .detail ul { margin: .2rem 0; padding-left: 1.2rem; }
+details > summary { cursor: pointer; color: #1f5fa8; margin: .6rem 0; }
+.groups li { margin: .25rem 0; }
 .remedy { border-left: 4px solid var(--masked); background: #fdf3f2; padding: .4rem .7rem; margin: .5rem 0; }
 .errorbox { border-left: 4px solid var(--error); background: #f7f0fa; padding: .4rem .7rem; margin: .5rem 0; }
 figure { margin: .8rem 0 0; }

@@ -62,8 +62,10 @@ def _slug(part: str) -> str:
 
 def embed_svg(svg: str, prefix: str) -> str:
     """An SVG document made fit to sit inline among others: ids get ``prefix``
-    (so two plots never share one), the fixed size gives way to the page's."""
+    (so two plots never share one), the fixed size gives way to the page's,
+    the metadata block goes."""
     text = svg[svg.index("<svg"):] if "<svg" in svg else svg
+    text = re.sub(r"\s*<metadata>.*?</metadata>", "", text, flags=re.S)  # RDF block: not shown
     text = re.sub(r'\bid="([^"]+)"', lambda m: f'id="{prefix}{m.group(1)}"', text)
     text = re.sub(r"url\(#([^)]+)\)", lambda m: f"url(#{prefix}{m.group(1)})", text)
     text = re.sub(r'href="#([^"]+)"', lambda m: f'href="#{prefix}{m.group(1)}"', text)
@@ -140,7 +142,8 @@ def _detail(rec: Mapping, svg: str | None, plot_note: str) -> str:
     left = [
         "<h3>Readings</h3><table><tbody>"
         f"<tr><th>alone</th><td>{_e(reading_words(rec.get('isolated')) or '-')}</td></tr>"
-        f"<tr><th>in circuit</th><td>{_e(reading_words(rec.get('in_circuit')) or '-')} {_e(_deviation(rec))}</td></tr>"
+        f"<tr><th>in circuit</th><td>{_e(reading_words(rec.get('in_circuit')) or '-')}"
+        + (f" ({_e(_deviation(rec))})" if _deviation(rec) else "") + "</td></tr>"
         f"<tr><th>healthy band</th><td>{_e((rec.get('band') or {}).get('text') or '-')}</td></tr>"
         f"<tr><th>sensitivity</th><td>{_e(_fmt_s(rec.get('sensitivity')))}</td></tr>"
         "</tbody></table>",
@@ -236,20 +239,35 @@ def _summary(data: Mapping) -> str:
     return "".join(out)
 
 
+def _why(rec: Mapping) -> str:
+    """The first reason without its "X is masked: " lead."""
+    first = str((rec.get("reasons") or ["-"])[0])
+    return re.sub(r"^\S+ is \w+: ", "", first)
+
+
 def _designer(data: Mapping) -> str:
     parts = {p.get("part"): p for p in data.get("parts") or []}
-    rows = []
-    for item in data.get("masked") or []:
-        rec = parts.get(item.get("part")) or {}
-        remedy = item.get("remedy") or {}
-        why = (rec.get("reasons") or ["-"])[0]
-        rows.append(f'<tr><td><a href="#{_slug(str(item.get("part")))}">{_e(item.get("part"))}</a></td>'
-                    f"<td>{_e(why)}</td><td><strong>{_e(remedy.get('title'))}</strong>: {_e(remedy.get('text'))}</td>"
-                    f"<td>{_badge(remedy.get('expected_verdict'))}</td></tr>")
-    if not rows:
+    masked = data.get("masked") or []
+    if not masked:
         return "<p>No part is masked: every surveyed part can be checked in place.</p>"
-    return ("<table><thead><tr><th>Part</th><th>Why it is masked</th><th>Change</th><th>Verdict after</th>"
-            f"</tr></thead><tbody>{''.join(rows)}</tbody></table>")
+    groups: dict[str, list[str]] = {}
+    rows = []
+    for item in masked:
+        name = str(item.get("part"))
+        rec = parts.get(name) or {}
+        remedy = item.get("remedy") or {}
+        groups.setdefault(str(remedy.get("title") or "-"), []).append(name)
+        rows.append(f'<tr><td><a href="#{_slug(name)}">{_e(name)}</a></td>'
+                    f"<td>{_e(_why(rec))}</td><td><strong>{_e(remedy.get('title'))}</strong>: {_e(remedy.get('text'))}</td>"
+                    f"<td>{_badge(remedy.get('expected_verdict') or '-')}</td></tr>")
+    items = "".join(
+        f"<li><strong>{_e(title)}</strong> ({len(names)}): "
+        + ", ".join(f'<a href="#{_slug(n)}">{_e(n)}</a>' for n in names) + "</li>"
+        for title, names in sorted(groups.items(), key=lambda kv: -len(kv[1])))
+    return (f'<ul class="groups">{items}</ul>'
+            f"<details><summary>Every masked part with its change ({len(rows)})</summary>"
+            "<table><thead><tr><th>Part</th><th>Why it is masked</th><th>Change</th><th>Verdict after</th>"
+            f"</tr></thead><tbody>{''.join(rows)}</tbody></table></details>")
 
 
 def _what_if(w: Mapping) -> str:

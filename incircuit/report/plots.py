@@ -81,7 +81,8 @@ def _panel(ax, steps: Sequence[dict] | None, title: str, probes: Sequence[str]) 
     ax.set_xlim(0, len(steps))
     ax.set_xticks(ticks, labels, rotation=90, fontsize=6)
     ax.tick_params(axis="x", length=0)
-    ax.legend(loc="upper right", fontsize=6, frameon=False, ncol=n_probes)
+    ax.legend(loc="lower right", bbox_to_anchor=(1.0, 1.0), fontsize=6, frameon=False, ncol=n_probes,
+              borderaxespad=0.1)
 
 
 def trace_svg(isolated: Sequence[dict] | None, in_circuit: Sequence[dict] | None, part: str,

@@ -37,13 +37,14 @@ from ..bands import Band, healthy_band
 from ..chips import uncertainty_reasons
 from ..errors import EngineError
 from ..judge import judge
+from ..judge.runs import board_key
 from ..model import Board, Part
-from ..predict import Prediction, Run, predict
+from ..predict import Prediction, Run, identify
 from .remedy import remedy_for
 from .settings import TRACE_POINTS, Settings
 
 __all__ = ["PartResult", "survey_part", "probes_of", "band_for", "base_record", "STATUSES",
-           "VERDICT_ORDER", "plain"]
+           "VERDICT_ORDER", "plain", "RunCache"]
 
 #: Record statuses.
 STATUSES = ("ok", "error", "unsupported")
@@ -51,6 +52,57 @@ STATUSES = ("ok", "error", "unsupported")
 VERDICT_ORDER = ("reliable", "predictable", "masked", "error", "unsupported")
 
 _UNITS = {"R": "ohm", "C": "F", "L": "H", "K": "1"}
+
+
+class RunCache:
+    """Identification runs shared between the parts of one survey.
+
+    Parts on the same nets ask for many of the same runs (the board as it
+    is, the same neighbour lifted); the judge caches within one part, this
+    across parts. Keyed by the board's content and the probe nets; a run
+    with waveform samples also serves a request without. Bounded: a run
+    keeps every net's voltage after every step, so the limit shrinks as
+    boards grow (:meth:`for_board`); the oldest entries go first.
+    """
+
+    def __init__(self, profile, engine: str, limit: int = 256):
+        self.profile, self.engine, self.limit = profile, engine, limit
+        self._runs: dict[tuple, tuple[int, Run]] = {}
+        self.hits = 0
+        self.calls = 0
+
+    @classmethod
+    def for_board(cls, board: Board, profile, engine: str, net_budget: int = 20000) -> "RunCache":
+        """A cache holding about ``net_budget`` net voltages per step in all."""
+        return cls(profile, engine, max(8, net_budget // max(1, len(board.nets))))
+
+    def identify(self, board: Board, probes: Sequence[str], profile=None, engine: str | None = None,
+                 *, trace_points: int = 0) -> Run:
+        """:func:`incircuit.predict.identify` through the cache (same signature)."""
+        if profile is not None and profile is not self.profile or engine not in (None, self.engine):
+            return identify(board, probes, profile, engine or self.engine, trace_points=trace_points)
+        key = (board_key(board), tuple(probes))
+        found = self._runs.get(key)
+        if found is not None and found[0] >= trace_points:
+            self.hits += 1
+            self._runs[key] = self._runs.pop(key)  # most recently used last
+            return found[1]
+        self.calls += 1
+        run = identify(board, probes, self.profile, self.engine, trace_points=trace_points)
+        self._runs.pop(key, None)
+        self._runs[key] = (trace_points, run)
+        while len(self._runs) > self.limit:
+            del self._runs[next(iter(self._runs))]
+        return run
+
+    def predict(self, board: Board, part: Part, probes: Sequence[str], trace_points: int) -> Prediction:
+        """:func:`incircuit.predict.predict` through the cache: the part alone
+        (when every probe is on one of its pins) and in circuit."""
+        isolated = None
+        if all(n in part.pins for n in probes):
+            isolated = self.identify(board.only(part.name), probes, trace_points=trace_points)
+        in_circuit = self.identify(board, probes, trace_points=trace_points)
+        return Prediction(part.name, tuple(probes), self.engine, isolated, in_circuit)
 
 
 @dataclass
@@ -203,14 +255,16 @@ def _error(record: dict, error: BaseException) -> None:
 
 
 def survey_part(board: Board, name: str, profile, settings: Settings,
-                band: Band | BaseException | None = None) -> PartResult:
+                band: Band | BaseException | None = None, runs: RunCache | None = None) -> PartResult:
     """Predict, judge and find a remedy for part ``name``.
 
     ``band`` is the Monte Carlo band of the part's probes (None: the
     judge's tolerance band; an exception: the band failed, the tolerance
-    band is used and the failure is named in the reasons).
+    band is used and the failure is named in the reasons). ``runs`` shares
+    identification runs with the other parts of the survey.
     """
     part = board.part(name)
+    runs = runs or RunCache(profile, settings.engine, limit=64)
     record = base_record(part, settings.engine)
     result = PartResult(record)
     probes = probes_of(part)
@@ -219,8 +273,7 @@ def survey_part(board: Board, name: str, profile, settings: Settings,
         return result
     try:
         try:
-            prediction: Prediction = predict(board, part.name, probes, profile, settings.engine,
-                                             trace_points=TRACE_POINTS if settings.plots else 0)
+            prediction = runs.predict(board, part, probes, TRACE_POINTS if settings.plots else 0)
         except EngineError as error:
             if len(probes) > 2:  # the tester model does not read this many probes yet
                 _unsupported(record, part, error)
@@ -232,7 +285,12 @@ def survey_part(board: Board, name: str, profile, settings: Settings,
                              "in_circuit": _trace(prediction.in_circuit)}
         use_band = band if isinstance(band, Band) else None
         judgement = judge(board, part.name, prediction, profile, settings.engine, probes,
-                          band=use_band)
+                          band=use_band, identify=runs.identify)
+        if judgement.verdict == "masked" and not any(not x.action.own for x in judgement.lift):
+            # the remedy needs to know which neighbour masks the part: judge again with every
+            # neighbour lifted in turn (the runs made so far come from the cache)
+            judgement = judge(board, part.name, prediction, profile, settings.engine, probes,
+                              band=use_band, identify=runs.identify, all_neighbours=True)
         found = plain(judgement.to_dict())
         assert isinstance(found, dict)
         cost = found.get("cost") or {}

@@ -123,11 +123,9 @@ def remedy_for(board: Board, part: str, probes: Sequence[str], record: Mapping) 
     lift: Sequence[Mapping] = record.get("lift") or ()
     if _reads_as_alone(record):
         beside = _beside(board, p.name, probes)
-        where = ("nothing else on the board joins its nets" if not beside else
-                 "what sits beside it does not change the reading")
-        text = (f"{p.name} reads in circuit as it reads alone ({where}), but the reading hardly "
-                f"follows {p.name}: the tester cannot resolve a change of it, so no board change "
-                f"helps; check it with a bench instrument (see the instrument advice)")
+        where = "nothing else joins its nets" if not beside else "its neighbours do not change it"
+        text = (f"{p.name} reads in circuit as alone ({where}), but the tester cannot resolve a "
+                f"change of it: no board change helps; check it with a bench instrument")
         return {"kind": "instrument", "title": REMEDY_TITLES["instrument"], "text": text,
                 "part": None, "leg": None, "net": None, "expected_verdict": None, "expected": None}
     helpful = [x for x in lift if x.get("verdict") in ("reliable", "predictable")]
@@ -141,19 +139,16 @@ def remedy_for(board: Board, part: str, probes: Sequence[str], record: Mapping) 
         leg, net = int(best["leg"]), str(best["net"])
         if other.kind == "X":
             kind = "series-resistor"
-            text = (f"put a series resistor (a few hundred ohms to a few kohm, as the signal allows) "
-                    f"between {other.name} pin {leg} and net {net}: the chip's protection diodes then "
-                    f"no longer clamp the tester's drive on {p.name}")
+            text = (f"series resistor (a few hundred ohms to a few kohm, as the signal allows) between "
+                    f"{other.name} pin {leg} and net {net}, so the chip's protection diodes stop "
+                    f"clamping the tester")
         elif other.kind == "R" and p.kind == "C" and set(other.pins) == set(p.pins):
             kind = "bleeder"
-            text = (f"move the bleeder {_label(other)} from straight across {p.name} to behind a "
-                    f"zero-ohm link that can be opened (or to the far side of a part that can be "
-                    f"lifted): it masks {p.name}")
+            text = f"move bleeder {_label(other)} from across {p.name} to behind a zero-ohm link that can be opened"
         else:
             kind = "link"
-            text = (f"fit a zero-ohm link in {_label(other)} leg {leg} (net {net}) that can be "
-                    f"opened for testing: {other.name} masks {p.name}")
-        text += f"; with it open {p.name} reads {_outcome(best)}"
+            text = f"zero-ohm link in {_label(other)} leg {leg} (net {net}), opened for testing"
+        text += f"; then {p.name} reads {_outcome(best)}"
         return {"kind": kind, "title": REMEDY_TITLES[kind], "text": text, "part": other.name,
                 "leg": leg, "net": net, "expected_verdict": best.get("verdict"),
                 "expected": best.get("reading")}
@@ -162,14 +157,12 @@ def remedy_for(board: Board, part: str, probes: Sequence[str], record: Mapping) 
         leg, net = int(best["leg"]), str(best["net"])
         others = [n for n in dict.fromkeys(probes) if n != net]
         far = f" and net {others[0]}" if others else ""
-        text = (f"fit a zero-ohm link between {p.name} leg {leg} and net {net}, with a test pad "
-                f"between the link and {p.name}: open the link and probe {p.name} between the pad"
-                f"{far}; several parts mask it at once, so no single neighbour change helps; "
-                f"with the link open it reads {_outcome(best)}")
+        text = (f"zero-ohm link in {p.name} leg {leg} (net {net}) with a test pad on {p.name}'s side; "
+                f"open it and probe the pad{far}: {p.name} then reads {_outcome(best)} "
+                f"(no single neighbour change un-masks it)")
         return {"kind": "test-pad", "title": REMEDY_TITLES["test-pad"], "text": text,
                 "part": p.name, "leg": leg, "net": net, "expected_verdict": best.get("verdict"),
                 "expected": best.get("reading")}
-    text = (f"no single lifted leg makes {p.name} checkable: give it test pads and zero-ohm links "
-            f"on both legs, or plan to desolder it for testing")
+    text = f"no single change found: test pads and links on both legs of {p.name}, or desolder it to test"
     return {"kind": "none", "title": REMEDY_TITLES["none"], "text": text, "part": None,
             "leg": None, "net": None, "expected_verdict": None, "expected": None}

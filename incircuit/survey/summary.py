@@ -13,8 +13,8 @@ from .result import Survey
 
 __all__ = ["summary_lines", "percent", "MASKED_SHOWN"]
 
-#: Masked parts listed in the text summary (the report lists them all).
-MASKED_SHOWN = 8
+#: Masked parts named per kind of remedy in the text summary (the report lists them all).
+MASKED_SHOWN = 10
 
 
 def percent(share: float | None) -> str:
@@ -39,12 +39,19 @@ def summary_lines(s: Survey, masked_shown: int = MASKED_SHOWN) -> list[str]:
         lines.append("Not in the coverage: " + ", ".join(cov["parts_not_counted"]))
     masked = s.masked()
     if masked:
-        lines.append(f"Masked parts and what would make them checkable in place ({len(masked)}):")
-        for item in masked[:masked_shown]:
+        lines.append(f"Masked parts ({len(masked)}) and the change that would let a repair shop "
+                     "check them in place:")
+        groups: dict[str, list[dict]] = {}
+        for item in masked:
             remedy = item.get("remedy") or {}
-            lines.append(f"  {item['part']:<6} {remedy.get('title', '-')}: {remedy.get('text', '-')}")
-        if len(masked) > masked_shown:
-            lines.append(f"  ... and {len(masked) - masked_shown} more in the report")
+            groups.setdefault(str(remedy.get("title", "-")), []).append(item)
+        for title, items in sorted(groups.items(), key=lambda kv: -len(kv[1])):
+            names = [i["part"] for i in items]
+            shown = ", ".join(names[:masked_shown]) + (f" and {len(names) - masked_shown} more"
+                                                       if len(names) > masked_shown else "")
+            lines.append(f"  {title} ({len(items)}): {shown}")
+            example = items[0].get("remedy") or {}
+            lines.append(f"      e.g. {items[0]['part']}: {example.get('text', '-')}")
     errors = [r for r in s.records if r.get("status") == "error"]
     for r in errors:
         err = r.get("error") or {}
