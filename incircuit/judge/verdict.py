@@ -66,10 +66,14 @@ def reliable_window(iso: Reading, part: Part, accuracy: float) -> tuple[float, f
 
 
 def classify(iso: Reading, inc: Reading, s: float | None, part: Part, accuracy: float) -> tuple[str, str]:
-    """``(verdict, why)``. Masked first (kind changes, a transistor's pins
-    found differently, or ``|S|`` below
+    """``(verdict, why)``. Masked first (a reading the engine cannot make,
+    kind changes, a transistor's pins found differently, or ``|S|`` below
     :data:`~.thresholds.MASKED_SENSITIVITY`), then reliable (inside
     :func:`reliable_window`), else predictable."""
+    needs = inc.extra.get("needs") or iso.extra.get("needs")
+    if needs:
+        return "masked", (f"the engine used cannot simulate what this reading needs (see the reading): "
+                          f"run with --engine {needs} for a verdict")
     if iso.kind != inc.kind:
         return "masked", f"the reading changes kind: {reading_text(inc)} instead of {reading_text(iso)}"
     pins = pins_reason(iso, inc)

@@ -80,3 +80,14 @@ def test_a_gate_source_resistor_below_the_threshold_masks_the_mosfet():
     assert any("never turns on" in r for r in j.reasons)
     assert j.sensitivity.what == "vto"
     assert any(x.verdict == "reliable" for x in j.lift)
+
+
+def test_no_verdict_of_reliable_when_the_engine_cannot_read_the_part():
+    # the analytic engine leaves MOSFET channels out: its "needs ngspice" answer
+    # must not pass for a reading that judges the part
+    model = Model("MN", "NMOS", {"vto": 2.0, "kp": 0.5, "is": 1e-14})
+    board = Board("t", (Part("M1", "M", ("D", "G", "S", "S"), model="MN"), Part("RGS", "R", ("G", "S"), 1e6)),
+                  {"MN": model})
+    pred, j = judged(board, "M1")
+    assert pred.in_circuit.reading.extra["needs"] == "ngspice"
+    assert j.verdict == "masked" and "--engine ngspice" in j.reasons[0]
