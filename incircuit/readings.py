@@ -110,7 +110,7 @@ _NUMBER = re.compile(
 )
 _IEC = re.compile(rf"^(?P<int>\d*)(?P<letter>[RrkKMGTpPnNuUm])(?P<frac>\d+){_UNIT_RE}?$")
 _SECONDARY_RE = re.compile(r"[,;\s]*\b(?P<key>esr)\b\s*[:=]?\s*(?P<value>.+?)\s*$", re.IGNORECASE)
-_KIND_RE = re.compile(r"^(?P<word>[a-z]+)\b\s*[:=]?\s*", re.IGNORECASE)
+_KIND_RE = re.compile(r"^(?P<word>[a-z]+)(?:\s*[:=]\s*|\s+|(?=[\d.])|$)", re.IGNORECASE)
 
 _Fail = Callable[[str], NoReturn]
 

@@ -63,6 +63,9 @@ def test_iec_60062_letter_as_decimal_point(text, kind, value):
         ("res 10k", "resistor", 10e3),
         ("ind 10u", "inductor", 10e-6),
         ("npn 250", "bjt-npn", 250.0),
+        ("npn250", "bjt-npn", 250.0),
+        ("cap: 4.7uF", "capacitor", 4.7e-6),
+        ("res10k", "resistor", 10e3),
     ],
 )
 def test_prefixes_units_and_kind_words(text, kind, value):
