@@ -31,7 +31,7 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.linalg as sla
 from scipy.optimize import brentq
-from scipy.sparse.csgraph import connected_components
+from scipy.sparse.csgraph import connected_components, minimum_spanning_tree
 
 __all__ = ["Split", "cap_islands", "make_split", "Static", "Modal", "Exponential", "decompose", "first_event", "time_grid"]
 
@@ -55,9 +55,13 @@ class Split:
     Linv: np.ndarray
 
 
-def cap_islands(C: np.ndarray, grounded: np.ndarray) -> list[tuple[np.ndarray, bool]]:
-    """Groups of nets joined by capacitors, each with whether it floats
-    (no capacitance to the tester's ground)."""
+def cap_islands(C: np.ndarray, grounded: np.ndarray) -> list[tuple[np.ndarray, bool, list[tuple[int, int]]]]:
+    """Groups of nets joined by capacitors: ``(members, floats, tree)``.
+
+    ``floats``: no capacitance to the tester's ground. ``tree``: the edges
+    (local indices; ``len(members)`` stands for the tester's ground) of a
+    spanning tree of largest capacitances (Kruskal's tree for weights 1/C).
+    """
     cap = np.flatnonzero(np.diag(C) > 0)
     if not len(cap):
         return []
@@ -65,7 +69,19 @@ def cap_islands(C: np.ndarray, grounded: np.ndarray) -> list[tuple[np.ndarray, b
     out = []
     for c in range(ncomp):
         members = cap[labels == c]
-        out.append((members, not grounded[members].any()))
+        k = len(members)
+        floating = not grounded[members].any()
+        w = np.zeros((k + 1, k + 1))
+        sub = -C[np.ix_(members, members)]
+        np.fill_diagonal(sub, 0.0)
+        pos = sub > 0
+        w[:k, :k][pos] = 1.0 / sub[pos]
+        if not floating:
+            stray = C[members].sum(axis=1)
+            g = grounded[members] & (stray > 0)
+            w[:k, k][g] = 1.0 / stray[g]
+        tree = minimum_spanning_tree(w).tocoo()
+        out.append((members, floating, list(zip(tree.row.tolist(), tree.col.tolist()))))
     return out
 
 
@@ -73,15 +89,18 @@ def make_split(
     C: np.ndarray,
     grounded: np.ndarray,
     anchor: np.ndarray | None = None,
-    islands: list[tuple[np.ndarray, bool]] | None = None,
+    islands: list | None = None,
 ) -> Split:
     """Coordinates for capacitance matrix ``C`` (``grounded``: nets with capacitance to ground).
 
-    The reference net of a floating island is the member with the largest
-    ``anchor`` (its conductance to everything else): eliminating the
-    island's common mode then subtracts small numbers from small ones
-    instead of large from large (no cancellation). ``islands`` may be
-    passed in from :func:`cap_islands` to save recomputing them.
+    The dynamic coordinates are the voltages across the branches of each
+    island's tree of largest capacitances (:func:`cap_islands`), rooted at
+    the tester's ground or, for a floating island, at its member with the
+    largest ``anchor`` (its conductance to everything else), whose voltage
+    is the island's algebraic common mode. A large capacitor then gets a
+    coordinate of its own instead of sharing two with small ones, which
+    keeps ``Cr`` well conditioned (after diagonal scaling), and eliminating
+    the common mode subtracts small numbers from small ones.
 
     >>> C = np.array([[2.0, -1.0, 0.0], [-1.0, 1.0, 0.0], [0.0, 0.0, 0.0]])
     >>> s = make_split(C, np.array([True, False, False]))
@@ -91,35 +110,54 @@ def make_split(
     n = len(C)
     if islands is None:
         islands = cap_islands(C, grounded)
-    dyn: list[int] = []
-    refs: list[int] = []
+    tr_cols: list[np.ndarray] = []
+    l_rows: list[tuple[int, int]] = []
     tn_ind: list[np.ndarray] = []
-    for members, floating in islands:
-        ref = -1
+    for members, floating, tree in islands:
+        k = len(members)
         if floating:
-            ref = int(members[0] if anchor is None else members[np.argmax(anchor[members])])
+            root = int(0 if anchor is None else np.argmax(anchor[members]))
             tn_ind.append(members)
-        for j in members:
-            if j != ref:
-                dyn.append(int(j))
-                refs.append(ref)
+        else:
+            root = k
+        adj: list[list[int]] = [[] for _ in range(k + 1)]
+        for a, b in tree:
+            adj[a].append(b)
+            adj[b].append(a)
+        parent = [-1] * (k + 1)
+        order = [root]
+        parent[root] = root
+        for v in order:
+            for u in adj[v]:
+                if parent[u] == -1:
+                    parent[u] = v
+                    order.append(u)
+        below: dict[int, list[int]] = {}
+        for v in reversed(order[1:]):
+            nodes = below.pop(v, []) + [v]
+            below.setdefault(parent[v], []).extend(nodes)
+            col = np.zeros(n)
+            col[members[nodes]] = 1.0
+            tr_cols.append(col)
+            l_rows.append((int(members[v]), -1 if parent[v] == k else int(members[parent[v]])))
     alg = np.flatnonzero(np.diag(C) <= 0)
-    nr, na = len(dyn), len(tn_ind) + len(alg)
-    Tr = np.zeros((n, nr))
+    nr, na = len(tr_cols), len(tn_ind) + len(alg)
+    Tr = np.array(tr_cols).T.reshape(n, nr)
     Lsel = np.zeros((nr, n))
+    for row, (v, p) in enumerate(l_rows):
+        Lsel[row, v] = 1.0
+        if p >= 0:
+            Lsel[row, p] = -1.0
     Tn = np.zeros((n, na))
-    if nr:
-        cols = np.arange(nr)
-        Tr[dyn, cols] = 1.0
-        Lsel[cols, dyn] = 1.0
-        for row, ref in enumerate(refs):
-            if ref >= 0:
-                Lsel[row, ref] = -1.0
-    for k, members in enumerate(tn_ind):
-        Tn[members, k] = 1.0
+    for j, members in enumerate(tn_ind):
+        Tn[members, j] = 1.0
     Tn[alg, len(tn_ind) + np.arange(len(alg))] = 1.0
-    Cr = C[np.ix_(dyn, dyn)]
-    Linv = np.linalg.inv(np.linalg.cholesky(Cr)) if nr else np.zeros((0, 0))
+    Cr = Tr.T @ C @ Tr
+    if nr:
+        d = 1.0 / np.sqrt(np.diag(Cr))
+        Linv = np.linalg.inv(np.linalg.cholesky(Cr * np.outer(d, d))) * d
+    else:
+        Linv = np.zeros((0, 0))
     return Split(Tr, Tn, Lsel, Cr, Linv)
 
 
@@ -177,22 +215,28 @@ class Modal:
             self.ok = True
             return
         Ar = sp_.Tr.T @ st.A
-        K = Ar - st.Grn @ st.H @ st.An
-        D = st.An.T @ st.H @ st.An
-        E = sla.block_diag(Cr, Lm)
-        Ablk = np.block([[S, K], [-K.T, D]])
-        Bmap = np.vstack([st.P.T, st.An.T @ st.H @ sp_.Tn.T])
-        self.F = -np.linalg.solve(E, Ablk)
-        self.gmap = np.linalg.solve(E, Bmap)
+        HAn = st.H @ st.An
+        K = Ar - st.Grn @ HAn
+        D = st.An.T @ HAn
+        # E = blockdiag(Cr, Lm): invert by blocks (Cr^-1 = Linv^T Linv)
+        Crinv = sp_.Linv.T @ sp_.Linv
+        Lminv = np.linalg.inv(Lm)
+        self.F = -np.vstack([Crinv @ np.hstack([S, K]), Lminv @ np.hstack([-K.T, D])])
+        self.gmap = np.vstack([Crinv @ st.P.T, Lminv @ (HAn.T @ sp_.Tn.T)])
         self.Cz = np.hstack([st.P, st.Pi])
         self.nr = nr
         lam, V = np.linalg.eig(self.F)
         self.real = False
-        cond = np.linalg.cond(V) if len(V) else 1.0
+        self.ok = False
+        try:
+            Vinv = np.linalg.inv(V)
+        except np.linalg.LinAlgError:
+            return
+        # 1-norm condition number of the eigenvectors (within a factor N of the 2-norm one)
+        cond = np.abs(V).sum(axis=0).max() * np.abs(Vinv).sum(axis=0).max()
         self.ok = bool(np.isfinite(cond) and cond < EIG_COND_MAX)
         if not self.ok:
             return
-        Vinv = np.linalg.inv(V)
         self.lam = lam
         self.M = self.Cz @ V
         self.Mi = V[nr:, :]
@@ -247,21 +291,39 @@ class ModalTrajectory:
         return x, i
 
 
+def _tphi(lam: np.ndarray, t) -> np.ndarray:
+    """``t phi1(lam t) = (e^{lam t} - 1) / lam`` (``t`` where ``lam = 0``), accurate for small ``lam t``."""
+    u = np.multiply.outer(t, lam)
+    zero = lam == 0
+    if not zero.any():
+        return np.expm1(u) / lam
+    return np.where(zero, np.multiply.outer(t, np.ones(len(lam))), np.expm1(u) / np.where(zero, 1.0, lam))
+
+
 class Combo:
     """``c + Re(sum_k p_k e^{lam_k t} + q_k t phi1(lam_k t))`` for several rows.
 
-    For speed the modes that change appreciably within ``horizon`` are
-    folded into ``c' + sum_k a_k e^{lam_k t}`` (``a = p + q/lam``); the few
-    slow ones (``|lam| horizon < 1e-3``, e.g. a loop of inductors) keep the
-    ``t phi1`` form with its Taylor series.
+    For speed the modes that die out within ``horizon`` (``|lam| horizon >=
+    30``) are folded into ``c' + sum_k a_k e^{lam_k t}`` with ``a = p + q/lam``.
+    The others keep the ``t phi1`` form: folding them would add and subtract
+    ``q/lam``, which for a slow mode can be far larger than the function
+    itself and leave rounding errors of nanovolts (enough to make a junction
+    chatter at a knot).
     """
 
+    SLOW = 30.0
+
     def __init__(self, lam, p, q, c, real: bool, horizon: float = np.inf):
-        slow = np.abs(lam) * horizon < 1e-3
-        fast = ~slow
-        lf = lam[fast]
-        qf = q[:, fast] / lf
-        a = p[:, fast] + qf
+        slow = np.abs(lam) * horizon < self.SLOW
+        if slow.any():
+            fast = ~slow
+            lf = lam[fast]
+            qf = q[:, fast] / lf
+            a = p[:, fast] + qf
+        else:
+            lf = lam
+            qf = q / lf
+            a = p + qf
         self.c = c - qf.sum(axis=1).real
         if np.iscomplexobj(lf):
             # a real matrix has conjugate pairs with conjugate coefficients:
@@ -271,7 +333,7 @@ class Combo:
             lf = lf[upper]
         self.lf, self.a = lf, a
         self.ls, self.ps, self.qs = lam[slow], p[:, slow], q[:, slow]
-        self.real = real and not np.iscomplexobj(self.a)
+        self.real = real and not np.iscomplexobj(self.a) and not np.iscomplexobj(self.ps)
 
     def ringing(self) -> np.ndarray:
         """Mask of the ringing modes with at least 1e-3 of some row's total swing."""
@@ -281,24 +343,21 @@ class Combo:
         share = amp / np.maximum(amp.sum(axis=1, keepdims=True), 1e-300)
         return (share >= 1e-3).any(axis=0) & (self.lf.imag > 0)
 
-
-
     def __call__(self, t: np.ndarray) -> np.ndarray:
         t = np.asarray(t, dtype=float)
         out = np.exp(np.multiply.outer(t, self.lf)) @ self.a.T
         if len(self.ls):
-            u = np.multiply.outer(t, self.ls)
-            tp = t[:, None] * (1.0 + u * (0.5 + u * (1.0 / 6.0 + u / 24.0)))
-            out = out + np.exp(u) @ self.ps.T + tp @ self.qs.T
+            out = out + np.exp(np.multiply.outer(t, self.ls)) @ self.ps.T + _tphi(self.ls, t) @ self.qs.T
         return self.c + (out if self.real else out.real)
 
     def reachable(self, horizon: float) -> np.ndarray:
         """Rows that can reach 0 within ``[0, horizon]``, by the bound
-        ``c + sum |a_k| max(1, e^{Re lam_k horizon})`` (and the like for slow modes)."""
+        ``c + sum |a_k| max(1, e^{Re lam_k horizon})``; for the slow modes
+        ``|p| e^{..} + |q| horizon e^{..}`` (as ``|t phi1(lam t)| <= t e^{max(Re lam, 0) t}``)."""
         grow = np.exp(np.maximum(self.lf.real, 0.0) * horizon)
         bound = self.c + np.abs(self.a) @ grow
         if len(self.ls):
-            gs = np.exp(np.maximum(self.ls.real, 0.0) * horizon) * 1.01
+            gs = np.exp(np.maximum(self.ls.real, 0.0) * horizon) * (1 + 1e-9)
             bound = bound + np.abs(self.ps) @ gs + np.abs(self.qs) @ (gs * horizon)
         return bound >= 0
 
@@ -319,8 +378,7 @@ class Combo:
             return lambda t: c + float((a @ np.exp(lf * t)).real)
 
         def f(t: float) -> float:
-            u = ls * t
-            v = a @ np.exp(lf * t) + ps @ np.exp(u) + qs @ (t * (1.0 + u * (0.5 + u * (1.0 / 6.0 + u / 24.0))))
+            v = a @ np.exp(lf * t) + ps @ np.exp(ls * t) + qs @ _tphi(ls, t)
             return c + float(v.real)
 
         return f

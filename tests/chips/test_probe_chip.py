@@ -26,7 +26,6 @@ from incircuit.chips.roles import parse_roles
 from incircuit.engines import get_engine
 from incircuit.engines.base import Source
 from incircuit.engines.ngspice import available
-from incircuit.errors import EngineError
 from incircuit.model import Board, Part
 from incircuit.tester.bench import Bench
 from incircuit.tester.conduction import pulse
@@ -99,15 +98,7 @@ def test_two_junction_drops_then_the_bulk_capacitor_charges(engine):
     assert seen == pytest.approx(bulk + C_DIE, rel=0.02)
 
 
-#: The analytic engine stops with "too many junction switches" when the driven
-#: probe floats after charging the rail through the two junctions (the pulse's
-#: hold step); strict, so the case turns red once the engine copes.
-PULSE_ENGINES = [pytest.param("analytic", marks=pytest.mark.xfail(
-    strict=True, raises=EngineError, reason="analytic engine: floating probe behind two junctions")),
-    ENGINES[1]]
-
-
-@pytest.mark.parametrize("engine", PULSE_ENGINES)
+@pytest.mark.parametrize("engine", ENGINES)
 def test_tester_conduction_pulse_reads_two_drops_and_the_charging_rate(engine):
     profile = load_profile()
     bulk = 100e-6

@@ -164,3 +164,33 @@ def test_state_and_junctions_carry_across_steps():
     assert 4.5 < charged.nets["K"] - charged.nets["G"] < 4.8
     held = s.run((None, LOW), 0.01)
     assert held.nets["K"] == pytest.approx(charged.nets["K"], rel=1e-4)
+
+
+def test_floating_probe_behind_two_junctions_does_not_chatter():
+    # Regression: a floating capacitor island (no stray) with a 100 uF capacitor
+    # between two unprobed nets and picofarads to the probes. The probe charges the
+    # rail through two junctions, then floats: with nets as coordinates the large
+    # and small capacitances shared coordinates and rounding (nanovolts) made a
+    # junction switch segments back and forth at a knot until the step gave up.
+    model = Model("DP", "D", {"is": 1e-14, "n": 1.0})
+    b = Board(
+        "t",
+        (
+            Part("DH", "D", ("IN1", "VCC"), model="DP"),
+            Part("DL", "D", ("GND", "IN2"), model="DP"),
+            Part("C1", "C", ("VCC", "GND"), 100e-6),
+            Part("CA", "C", ("IN1", "GND"), 6e-12),
+            Part("CB", "C", ("IN2", "GND"), 6e-12),
+            Part("CC", "C", ("IN1", "VCC"), 1e-12),
+        ),
+        {"DP": model},
+    )
+    s = ENGINE.open(b, ("IN1", "IN2"), 0.0)
+    s.run((Source(700.0, 5.0), Source(20.0, 0.0)), 0.01)
+    res = s.run((None, Source(20.0, 0.0)), 0.01)  # raised EngineError before
+    # the rail keeps its charge (100 uF, nothing discharges it but GMIN): about
+    # (5 V - 2 Vf)(1 - e^(-10 ms / 72 ms)) = 0.47 V (RC charge, Horowitz & Hill ch. 1)
+    assert 0.35 < res.nets["VCC"] - res.nets["GND"] < 0.6
+    # the floating probe sits at most a diode drop above the rail (Shockley: it
+    # cannot hold more than the forward voltage at its own tiny current)
+    assert -1e-3 < res.volts[0] - res.nets["VCC"] < 0.7
