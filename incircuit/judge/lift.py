@@ -97,10 +97,15 @@ def _pin_on(board: Board, name: str, net: str) -> int | None:
 
 
 def lift_candidates(board: Board, part: str, probes: Sequence[str],
-                    limit: int = MAX_NEIGHBOUR_PARTS) -> list[LiftAction]:
-    """Every single-leg lift worth predicting, own legs first."""
+                    limit: int = MAX_NEIGHBOUR_PARTS, own: bool = True) -> list[LiftAction]:
+    """Every single-leg lift worth predicting, own legs first (one per net:
+    pins tied together lift as one); ``own`` False: the neighbours' legs
+    only; ``limit`` 0: the own legs only."""
     p = board.part(part)
-    out = [LiftAction(p.name, i + 1, net, True) for i, net in enumerate(p.pins) if net not in p.pins[:i]]
+    out = [LiftAction(p.name, i + 1, net, True) for i, net in enumerate(p.pins)
+           if net not in p.pins[:i]] if own else []
+    if limit <= 0:
+        return out
     for name, net in neighbour_parts(board, p.name, probes, limit):
         pin = _pin_on(board, name, net)
         if pin is not None:

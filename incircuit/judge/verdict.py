@@ -198,9 +198,13 @@ def _lift(runs: Runs, board: Board, part: Part, probes: Sequence[str], iso: Read
     least as well are kept."""
     out: list[LiftOutcome] = []
     own_reliable = False
-    for action in lift_candidates(board, part.name, probes):
-        if not action.own and own_reliable and not all_neighbours:
-            break  # own legs come first in the candidate list
+
+    def candidates():
+        yield from lift_candidates(board, part.name, probes, limit=0)
+        if all_neighbours or not own_reliable:
+            yield from lift_candidates(board, part.name, probes, own=False)
+
+    for action in candidates():
         lifted, new_probes = action.apply(board, probes)
         reading = runs.try_reading(lifted, new_probes)
         if reading is None:
