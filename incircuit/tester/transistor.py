@@ -36,6 +36,7 @@ __all__ = [
     "GAIN_SETTLE_SECONDS",
     "GAIN_MIN",
     "VCE_SATURATED_VOLTS",
+    "VBE_MIN_VOLTS",
     "GATE_BIAS_SECONDS",
     "GATE_TIMEOUT_SECONDS",
     "THRESHOLD_DRAIN_AMPS",
@@ -51,6 +52,11 @@ GAIN_SETTLE_SECONDS = 0.02
 #: Below this Ic/Ib the placement shows no transistor action (two junctions
 #: sharing a terminal, a diode pair, give ~0). Design choice.
 GAIN_MIN = 2.0
+#: In the gain step the base-emitter junction must be forward biased by at
+#: least this much (germanium transistors run at about 0.2 V, from memory);
+#: a collector current that moves without it comes from something else on
+#: the board. Design choice.
+VBE_MIN_VOLTS = 0.1
 #: A collector-emitter voltage below this marks the gain step as saturated:
 #: the reading is then a lower bound of the gain (a silicon transistor
 #: saturates at about 0.1-0.3 V, common practice). Design choice.
@@ -132,8 +138,9 @@ def _current(bench: Bench, probe: int, rail: str, via: str, volts: float) -> flo
 def bjt_gain(bench: Bench, npn: bool, base: int, collector: int, emitter: int) -> Gain | None:
     """Gain with the base fed through the high resistor, the collector
     through the low one and the emitter at the other rail; None when the
-    collector current does not follow the base drive (the caller compares
-    the gain with :data:`GAIN_MIN`).
+    collector current does not follow the base drive, or the base-emitter
+    junction is not forward biased by :data:`VBE_MIN_VOLTS` (the caller
+    compares the gain with :data:`GAIN_MIN`).
 
     A leakage step first holds the base at the emitter's rail (collector
     current with no base drive); the gain step follows it directly.
@@ -161,6 +168,8 @@ def bjt_gain(bench: Bench, npn: bool, base: int, collector: int, emitter: int) -
         return None
     hfe = ic / ib
     sign = 1.0 if npn else -1.0
+    if sign * (vb.volts - ve.volts) < VBE_MIN_VOLTS:
+        return None  # the base-emitter junction is not forward biased: no transistor action
     r_c = bench.source(collector, up, "low").resistance
     resolution = hfe * (vc.lsb / r_c / ic + vb.lsb / bench.source(base, up, "high").resistance / ib)
     vce = sign * (vc.volts - ve.volts)
