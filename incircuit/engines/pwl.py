@@ -29,7 +29,7 @@ Knots, from the left:
   ``max(Is, 0.05 g0 n Vt) + gmin |V|``: Is itself for large-Is parts, a few
   pA for a small-signal silicon diode;
 * forward currents 1 nA, 10 nA, 100 nA, then ``per_decade`` per decade from
-  1 uA to 1 A (those below ``Is`` are skipped).
+  1 uA to 1 A (those below ``Is / 10`` are skipped).
 
 Every knot current also includes ``gmin * V`` (SPICE's GMIN across each
 junction), which is the slope left of the lowest knot; right of the highest
@@ -166,7 +166,10 @@ def junction_curve(
     currents = list(_LOW_CURRENTS) + [
         1e-6 * 10 ** (k / per_decade) for k in range(int(round(per_decade * math.log10(i_max / 1e-6))) + 1)
     ]
-    fwd = [c for c in currents if c >= is_]
+    # knots from Is/10 up: the off segment (origin to the first knot) then
+    # spans I/Is < 1, where ln(1 + I/Is) is nearly straight (chord error
+    # < 0.06 n Vt); from Is up it would reach 0.25 n Vt
+    fwd = [c for c in currents if c >= 0.1 * is_ * (1 - 1e-9)]
     v = [shockley_voltage(c, is_, n, rs) for c in fwd]
     # the "off" segment: the chord from the origin to the first forward knot,
     # continued in reverse down to where it carries Is (at least _OFF_U n Vt away)

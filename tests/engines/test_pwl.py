@@ -40,7 +40,7 @@ def test_chord_error_formula_matches_numerical_maximum():
         assert chord_error(q) == pytest.approx(-res.fun, rel=1e-8)
 
 
-@pytest.mark.parametrize("is_, n, rs", [(1e-14, 1.0, 0.0), (2.5e-9, 1.9, 0.5), (1e-20, 3.5, 20.0)])
+@pytest.mark.parametrize("is_, n, rs", [(1e-14, 1.0, 0.0), (2.5e-9, 1.9, 0.5), (1e-20, 3.5, 20.0), (1e-5, 1.05, 0.1)])
 def test_knots_exact_and_chord_error_bound(is_, n, rs):
     curve = junction_curve(is_, n, rs)
     for current in (10e-6, 1e-3):
