@@ -70,7 +70,7 @@ def test_q1_alone_follows_gummel_poon_on_ngspice(board):
     assert reading.value == pytest.approx(expected, abs=2 * reading.extra["resolution"])
 
 
-@pytest.mark.parametrize("engine", [pytest.param("analytic"), pytest.param("ngspice", marks=NGSPICE)])
+@pytest.mark.parametrize("engine", [pytest.param("analytic"), pytest.param("ngspice", marks=[NGSPICE, pytest.mark.slow])])
 def test_q1_in_circuit_loses_its_base_drive_to_rbe(board, engine):
     # RBE || (RB + RPD) between base and emitter takes Vbe / R_BE, more than the
     # (Vs - Vbe) / R_high the tester feeds the base: Q1 stays off, two junctions remain
@@ -88,6 +88,7 @@ def test_m1_needs_ngspice_on_the_analytic_engine(board):
 
 
 @NGSPICE
+@pytest.mark.slow
 def test_m1_alone_and_in_circuit_on_ngspice(board):
     pins = board.part("M1").pins[:3]
     reading = identify(board.only("M1"), pins, engine="ngspice", trace_points=0).reading
