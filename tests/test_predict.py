@@ -145,7 +145,10 @@ def test_cli_text(board_file, capsys):
 def test_cli_json(board_file, capsys):
     assert main(["predict", board_file, "R1", "--json"]) == 0
     data = json.loads(capsys.readouterr().out)
-    assert list(data) == ["part", "probes", "engine", "isolated", "in_circuit", "uncertain"]
+    # the stable contract comes first; the judgement's keys follow it
+    assert list(data)[:6] == ["part", "probes", "engine", "isolated", "in_circuit", "uncertain"]
+    assert {"verdict", "sensitivity", "reasons", "faults", "lift", "advice"} <= set(data)
+    assert data["verdict"] in ("reliable", "predictable", "masked")
     assert data["uncertain"] == []  # no unmodelled parts on this board
     assert data["isolated"]["kind"] == "resistor"
     assert main(["predict", board_file, "--between", "A", "B", "--json"]) == 0

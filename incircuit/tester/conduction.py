@@ -63,6 +63,13 @@ class Direction:
         return pulse.v_end / pulse.current
 
 
+#: Watches per discharge stage. A part that rings (an inductor against the
+#: probes' stray capacitance) swings the highest probe from one to the other
+#: several times before it settles, so each swing needs a watch of its own;
+#: the stage's time budget still bounds the whole discharge.
+MAX_DISCHARGE_WATCHES = 64
+
+
 class Undischargeable(Exception):
     """The part kept its charge past the discharge timeout."""
 
@@ -81,7 +88,7 @@ def discharge(bench: Bench, name: str = "discharge") -> bool:
     volts = [bench.adc(v).volts for v in last]
     for via, level in (("low", p.discharge_direct_volts), ("port", p.discharge_target_volts)):
         drive = bench.drive({i: ("low", via) for i in probes})
-        for _ in range(bench.n_probes + 1):
+        for _ in range(MAX_DISCHARGE_WATCHES):
             top = max(probes, key=lambda i: volts[i])
             rec = bench.run(f"{name} ({via})", drive, max(budget, 0.0), watch=Watch(top, level, rising=False),
                             sampled=f"probe {top + 1} until below {level:g} V, then every probe",
