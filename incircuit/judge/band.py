@@ -66,6 +66,10 @@ def _widen_extras(extras: dict[str, tuple[float, float]], r: Reading) -> None:
         extras[key] = (min(old[0], value - step), max(old[1], value + step))
 
 
+#: Reading kinds whose value cannot be negative.
+NON_NEGATIVE_KINDS = frozenset({"resistor", "capacitor", "inductor", "diode", "diode-pair"})
+
+
 @dataclass(frozen=True)
 class ToleranceBand:
     """Per reading kind, the lowest and highest healthy value (None: a
@@ -94,6 +98,8 @@ class ToleranceBand:
                 continue
             acc = abs(float(accuracy(r)))
             lo, hi = r.value - acc, r.value + acc
+            if r.kind in NON_NEGATIVE_KINDS and r.value >= 0:
+                lo = max(lo, 0.0)  # an ohm, farad, henry or forward drop is never below zero
             old = ranges.get(r.kind)
             if old is not None:
                 lo, hi = min(lo, old[0]), max(hi, old[1])
