@@ -7,8 +7,8 @@ are CPU time of this process (``time.process_time``; on a busy shared
 machine wall time mostly measures the other processes), with the median
 wall time beside it. Boards: the
 demo netlists (``netlists/*.cir`` with their pin-role files) and a generated
-500-part board (a seeded random mesh of resistors, capacitors, inductors
-and diodes). Goal: median under 50 ms per part on a 2-core machine.
+500-part board (50 seeded input channels on shared rails, see
+:func:`generated_board`). Goal: median under 50 ms per part on a 2-core machine.
 
 Usage: python benchmarks/bench_predict.py [--parts N] [--trace-points K] [--engine NAME]
 """
@@ -41,30 +41,37 @@ def demo_boards() -> list[Board]:
     return boards
 
 
-def generated_board(n_parts: int = 500, seed: int = 7) -> Board:
-    """A seeded random mesh: mostly resistors and capacitors, some inductors and diodes."""
+def generated_board(cells: int = 50, seed: int = 7) -> Board:
+    """A seeded 10-parts-per-cell board: ``cells`` input channels on shared rails.
+
+    Each channel: an input inductor with a termination resistor, a pull-up
+    to VCC, an RC low-pass in two stages, clamp diodes from the output to
+    both rails and a decoupling capacitor on the rails (E6 values, seeded).
+    Through the rails every part is joined to every other, as on a real
+    board; 50 cells give 500 parts.
+    """
     rng = random.Random(seed)
-    n_nets = n_parts // 3
-    nets = ["0"] + [f"N{i}" for i in range(1, n_nets)]
-    parts = []
     e6 = (1.0, 1.5, 2.2, 3.3, 4.7, 6.8)
-    for i in range(n_parts):
-        a = nets[rng.randrange(n_nets)] if i >= n_nets - 1 else nets[i]
-        b = nets[rng.randrange(n_nets)] if i >= n_nets - 1 else nets[i + 1]
-        if a == b:
-            b = nets[(nets.index(a) + 1) % n_nets]
-        roll = rng.random()
-        if roll < 0.5:
-            parts.append(Part(f"R{i}", "R", (a, b), rng.choice(e6) * 10.0 ** rng.randint(1, 6)))
-        elif roll < 0.85:
-            parts.append(Part(f"C{i}", "C", (a, b), rng.choice(e6) * 10.0 ** rng.randint(-11, -4)))
-        elif roll < 0.92:
-            parts.append(Part(f"L{i}", "L", (a, b), rng.choice(e6) * 10.0 ** rng.randint(-5, -2),
-                              params={"dcr": rng.choice(e6)}))
-        else:
-            parts.append(Part(f"D{i}", "D", (a, b), model="DGEN"))
+
+    def pick(lo: int, hi: int) -> float:
+        return rng.choice(e6) * 10.0 ** rng.randint(lo, hi)
+    parts: list[Part] = []
+    for k in range(cells):
+        s, i, m, o = f"S{k}", f"IN{k}", f"M{k}", f"OUT{k}"
+        parts += [
+            Part(f"L{k}", "L", (s, i), pick(-6, -4), params={"dcr": pick(-1, 0)}),
+            Part(f"RT{k}", "R", (s, "GND"), pick(4, 5)),
+            Part(f"RP{k}", "R", ("VCC", i), pick(4, 4)),
+            Part(f"RA{k}", "R", (i, m), pick(3, 4)),
+            Part(f"CA{k}", "C", (m, "GND"), pick(-9, -7)),
+            Part(f"RB{k}", "R", (m, o), pick(2, 3)),
+            Part(f"CB{k}", "C", (o, "GND"), pick(-10, -8)),
+            Part(f"DH{k}", "D", (o, "VCC"), model="DGEN"),
+            Part(f"DL{k}", "D", ("GND", o), model="DGEN"),
+            Part(f"CD{k}", "C", ("VCC", "GND"), pick(-7, -5) if k else 470e-6),
+        ]
     models = {"DGEN": Model("DGEN", "D", {"is": 2.52e-9, "n": 1.752, "rs": 0.568})}
-    return Board(f"generated {n_parts}-part mesh", tuple(parts), models)
+    return Board(f"generated {len(parts)}-part board ({cells} channels)", tuple(parts), models)
 
 
 def bench(board: Board, limit: int | None, trace_points: int, engine: str) -> None:
