@@ -10,8 +10,11 @@ TEST=0
 have_ngspice() {
     ldconfig -p 2>/dev/null | grep -q 'libngspice\.so'
 }
+PY=${PYTHON:-python3}
 missing_debs=""
 have_ngspice || missing_debs="libngspice0-dev"
+# Debian ships venv's pip bootstrap separately
+[ -x .venv/bin/python ] || "$PY" -c 'import ensurepip, venv' 2>/dev/null || missing_debs="$missing_debs python3-venv"
 if [ "$TEST" = 1 ]; then
     command -v chromium >/dev/null 2>&1 || missing_debs="$missing_debs chromium"
     command -v chromedriver >/dev/null 2>&1 || missing_debs="$missing_debs chromium-driver"
@@ -27,7 +30,6 @@ if [ -n "$missing_debs" ]; then
     fi
 fi
 
-PY=${PYTHON:-python3}
 [ -x .venv/bin/python ] || "$PY" -m venv .venv
 stamp=.venv/.installed$TEST
 if [ ! -f "$stamp" ] || [ pyproject.toml -nt "$stamp" ]; then
