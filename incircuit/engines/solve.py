@@ -38,6 +38,8 @@ __all__ = ["Split", "cap_islands", "make_split", "Static", "Modal", "Exponential
 #: Above this condition number of the eigenvector matrix the matrix
 #: exponential replaces the modal sum.
 EIG_COND_MAX = 1e8
+#: Grid points evaluated at once by the first event search (doubling after each chunk).
+CHUNK = 16
 
 
 @dataclass(frozen=True)
@@ -377,9 +379,16 @@ class Combo:
                 return lambda t: c + float(a @ np.exp(lf * t))
             return lambda t: c + float((a @ np.exp(lf * t)).real)
 
-        def f(t: float) -> float:
-            v = a @ np.exp(lf * t) + ps @ np.exp(ls * t) + qs @ _tphi(ls, t)
-            return c + float(v.real)
+        zero = ls == 0
+        if zero.any():
+            def f(t: float) -> float:
+                v = a @ np.exp(lf * t) + ps @ np.exp(ls * t) + qs @ _tphi(ls, t)
+                return c + float(v.real)
+        else:
+            def f(t: float) -> float:  # _tphi inlined for a scalar t (same operations)
+                u = ls * t
+                v = a @ np.exp(lf * t) + ps @ np.exp(u) + qs @ (np.expm1(u) / ls)
+                return c + float(v.real)
 
         return f
 
@@ -512,18 +521,35 @@ def _first_event(combo, t_end: float, rates: np.ndarray) -> tuple[float, int] | 
         ring = combo.ringing()
         rates = np.concatenate((np.where(ring, combo.lf, combo.lf.real), combo.ls))
     grid = time_grid(rates, t_end)
-    vals = combo(grid)
+    # the grid is evaluated in chunks of growing length, earliest first: the
+    # first event usually comes early, and the chunks give the same brackets
+    start, size = 0, CHUNK
+    while start < len(grid):
+        stop = min(len(grid), start + size)
+        found = _search_chunk(combo, grid, start, stop)
+        if found is not None:
+            return found
+        start, size = stop, 2 * size
+    return None
+
+
+def _search_chunk(combo, grid: np.ndarray, start: int, stop: int) -> tuple[float, int] | None:
+    """The first crossing bracketed by ``grid[g - 1], grid[g]`` for ``start <= g < stop``."""
+    vals = combo(grid[start:stop])
     if vals.size == 0:
         return None
     hit = vals >= 0
-    for g in np.flatnonzero(hit.any(axis=1)):
-        rows = np.flatnonzero(hit[g])
+    rows_f: dict = {}
+    for g in start + np.flatnonzero(hit.any(axis=1)):
+        rows = np.flatnonzero(hit[g - start])
         if g == 0:
             return 0.0, int(rows[0])
         a, b = grid[g - 1], grid[g]
         best: tuple[float, int] | None = None
         for k in rows:
-            f = combo.row(int(k))
+            f = rows_f.get(k)
+            if f is None:
+                f = rows_f[k] = combo.row(int(k))
             fa, fb = f(a), f(b)
             if fb < 0:
                 continue
