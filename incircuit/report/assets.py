@@ -47,7 +47,7 @@ thead th { background: var(--soft); white-space: nowrap; }
 #parts-table > thead th::after { content: " \\2195"; color: #aab3bb; font-size: .8em; }
 #parts-table > thead th[aria-sort="ascending"]::after { content: " \\2191"; color: var(--ink); }
 #parts-table > thead th[aria-sort="descending"]::after { content: " \\2193"; color: var(--ink); }
-td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
+td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 tbody.part > tr.row:hover { background: var(--soft); }
 button.toggle { font: inherit; font-weight: 600; border: 0; background: none; cursor: pointer; padding: 0;
   color: #1f5fa8; text-align: left; }

@@ -216,8 +216,8 @@ def _flat_band(band: object, reading: Mapping | None) -> dict | None:
     rng = ranges[kind]
     margin = float(getattr(band, "margin", 0.0))
     low = high = None
-    if rng is not None:
-        low, high = rng[0] - margin * abs(rng[0]), rng[1] + margin * abs(rng[1])
+    if rng is not None:  # no reading kind has a negative value: the accuracy can reach below 0
+        low, high = max(0.0, rng[0] - margin * abs(rng[0])), rng[1] + margin * abs(rng[1])
     units = getattr(band, "units", None) or {}
     median = reading.get("value") if reading and reading.get("kind") == kind else None
     return plain({"source": "tolerance", "kind": kind, "unit": units.get(kind), "low": low,

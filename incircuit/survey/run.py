@@ -61,11 +61,11 @@ def _group_task(names: Sequence[str]) -> list[PartResult]:
     return out
 
 
-def _groups(board: Board) -> list[list[str]]:
-    """Part names grouped by their probe nets (parts on the same nets share
+def _groups(board: Board, names: Sequence[str]) -> list[list[str]]:
+    """``names`` grouped by their probe nets (parts on the same nets share
     runs, so one process takes them all), groups in board order."""
     groups: dict[object, list[str]] = {}
-    for part in board.parts:
+    for part in (board.part(n) for n in names):
         key = probes_of(part) or part.name
         groups.setdefault(key, []).append(part.name)
     return list(groups.values())
@@ -103,15 +103,20 @@ def _map(func: Callable, items: Sequence, jobs: int, progress: Progress | None,
 
 
 def survey(board: Board, profile: Profile | None = None, settings: Settings | None = None,
-           progress: Progress | None = None) -> Survey:
-    """Survey every part of ``board``; see :class:`.result.Survey`."""
+           progress: Progress | None = None, parts: Sequence[str] | None = None) -> Survey:
+    """Survey every part of ``board`` (or only ``parts``, on the whole board);
+    see :class:`.result.Survey`."""
     global _STATE
     settings = settings or Settings()
     profile = profile or load_profile()
-    names = [p.name for p in board.parts]
+    if parts is None:
+        names = [p.name for p in board.parts]
+    else:
+        wanted_names = {n.upper() for n in parts}
+        names = [p.name for p in board.parts if p.name in wanted_names]
     wanted: dict[tuple[str, ...], None] = {}
     if settings.band_samples:
-        for part in board.parts:
+        for part in (board.part(n) for n in names):
             probes = probes_of(part)
             if probes is not None:
                 wanted.setdefault(probes, None)
@@ -123,7 +128,7 @@ def survey(board: Board, profile: Profile | None = None, settings: Settings | No
         found = _map(_band_task, pairs, settings.jobs, progress, 0, total,
                      lambda p: "band " + " - ".join(p))  # type: ignore[arg-type]
         bands.update(zip(pairs, found))
-        groups = _groups(board)
+        groups = _groups(board, names)
         done = _map(_group_task, groups, settings.jobs, progress, len(pairs), total,
                     lambda g: ", ".join(g), len)  # type: ignore[arg-type]
     finally:
