@@ -15,7 +15,8 @@ the goals: under 60 s and under 1 GiB on a 2-core machine.
 Usage::
 
     python benchmarks/bench_survey.py [--parts 1000] [--jobs 2] [--depth quick]
-                                      [--report DIR] [--limit N]
+                                      [--limit N] [--no-advice] [--no-plots]
+                                      [--verbose] [--report DIR]
 
 ``--limit N`` surveys only the first N parts (the board stays whole) and
 extrapolates the time to all parts, for a quick look.
@@ -82,6 +83,8 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--jobs", type=int, default=2)
     ap.add_argument("--depth", default="quick", choices=("quick", "standard", "full"))
     ap.add_argument("--limit", type=int, default=0, help="survey only the first N parts")
+    ap.add_argument("--no-advice", action="store_true", help="leave out the bench-instrument advice")
+    ap.add_argument("--no-plots", action="store_true", help="leave out the waveform plots")
     ap.add_argument("--verbose", action="store_true", help="print each finished group of parts")
     ap.add_argument("--report", metavar="DIR", help="also write the report here (default: a temporary folder)")
     args = ap.parse_args(argv)
@@ -91,11 +94,14 @@ def main(argv: list[str] | None = None) -> int:
     # with --limit the whole board is simulated, but only its first parts are surveyed
     names = [p.name for p in board.parts[: args.limit]] if args.limit else None
     print(f"board: {board.name}, {len(board.nets)} nets; engine analytic; depth {args.depth}; "
-          f"jobs {args.jobs}" + (f"; first {args.limit} parts only" if args.limit else ""))
+          f"jobs {args.jobs}" + (f"; first {args.limit} parts only" if args.limit else "")
+          + ("; no advice" if args.no_advice else "") + ("; no plots" if args.no_plots else ""),
+          flush=True)
 
     tracemalloc.start()
     started, cpu0 = time.perf_counter(), _cpu()
-    settings = Settings(depth=args.depth, jobs=args.jobs)
+    settings = Settings(depth=args.depth, jobs=args.jobs, advice=not args.no_advice,
+                        plots=not args.no_plots)
 
     def progress(done: int, total: int, label: str) -> None:
         print(f"  {done}/{total} done after {time.perf_counter() - started:.0f} s ({label[:40]})", flush=True)

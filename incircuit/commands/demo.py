@@ -47,7 +47,7 @@ def run(args: argparse.Namespace) -> int:
     path, pins = resolve_board(args.board)
     board = load_board_from_args(argparse.Namespace(pins=list(pins), switch=[], keep_sources=False), path)
     settings = Settings(engine=args.engine, depth=args.depth, jobs=args.jobs,
-                        plots=not args.no_plots, samples=args.samples)
+                        plots=not args.no_plots, samples=args.samples, advice=not args.no_advice)
     result, files = survey_and_report(board, profile, settings, Path(args.dir), quiet=args.json)
     print_outcome(result, files, args.json)
     return 0

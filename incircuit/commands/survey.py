@@ -61,6 +61,8 @@ def add_survey_options(parser: argparse.ArgumentParser, jobs_default: int = 1,
                         "(0: tolerance band only)")
     parser.add_argument("--no-plots", action="store_true",
                         help="leave the waveform plots out of the report (faster)")
+    parser.add_argument("--no-advice", action="store_true",
+                        help="leave out the bench-instrument advice (much faster on large boards)")
     parser.add_argument("--json", action="store_true",
                         help="print survey.json on standard output (and nothing else)")
 
@@ -146,7 +148,7 @@ def run(args: argparse.Namespace) -> int:
     board = load_board_from_args(options, path)
     changes = parse_changes(board, args.lift, args.set)
     settings = Settings(engine=args.engine, depth=args.depth, jobs=args.jobs,
-                        plots=not args.no_plots, samples=args.samples)
+                        plots=not args.no_plots, samples=args.samples, advice=not args.no_advice)
     out = Path(args.out) if args.out else default_out(path, bool(changes))
     if out.exists() and not out.is_dir():
         raise InputError("--out must be a folder, not a file", os.fspath(out))

@@ -49,6 +49,7 @@ thead th { background: var(--soft); white-space: nowrap; }
 #parts-table > thead th[aria-sort="descending"]::after { content: " \\2193"; color: var(--ink); }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 tbody.part > tr.row:hover { background: var(--soft); }
+tbody.part { scroll-margin-top: 6rem; }  /* clear of the sticky controls and header */
 button.toggle { font: inherit; font-weight: 600; border: 0; background: none; cursor: pointer; padding: 0;
   color: #1f5fa8; text-align: left; }
 button.toggle::before { content: "\\25B8 "; display: inline-block; width: 1em; }

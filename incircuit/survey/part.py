@@ -284,13 +284,14 @@ def survey_part(board: Board, name: str, profile, settings: Settings,
             result.traces = {"isolated": _trace(prediction.isolated),
                              "in_circuit": _trace(prediction.in_circuit)}
         use_band = band if isinstance(band, Band) else None
+        bench = None if settings.advice else ()
         judgement = judge(board, part.name, prediction, profile, settings.engine, probes,
-                          band=use_band, identify=runs.identify)
+                          band=use_band, identify=runs.identify, bench=bench)
         if judgement.verdict == "masked" and not any(not x.action.own for x in judgement.lift):
             # the remedy needs to know which neighbour masks the part: judge again with every
             # neighbour lifted in turn (the runs made so far come from the cache)
             judgement = judge(board, part.name, prediction, profile, settings.engine, probes,
-                              band=use_band, identify=runs.identify, all_neighbours=True)
+                              band=use_band, identify=runs.identify, bench=bench, all_neighbours=True)
         found = plain(judgement.to_dict())
         assert isinstance(found, dict)
         cost = found.get("cost") or {}

@@ -52,7 +52,8 @@ class Settings:
     """Everything besides the board and the tester profile that shapes a survey.
 
     ``samples`` overrides the depth's Monte Carlo sample count (None: the
-    depth's own); ``jobs`` is the number of processes.
+    depth's own); ``jobs`` is the number of processes; ``advice`` False
+    leaves out the bench-instrument advice.
     """
 
     engine: str = "analytic"
@@ -61,6 +62,9 @@ class Settings:
     seed: int = DEFAULT_SEED
     plots: bool = True
     samples: int | None = None
+    #: Bench-instrument advice per part (a nodal analysis of the whole board
+    #: per instrument setting: costly on large boards).
+    advice: bool = True
 
     def __post_init__(self) -> None:
         if self.depth not in DEPTHS:
@@ -78,5 +82,7 @@ class Settings:
     def describe(self) -> str:
         """One line, e.g. ``"standard (Monte Carlo band, 24 samples per probed pair)"``."""
         if self.band_samples == 0:
-            return f"{self.depth} (tolerance band of each part, no Monte Carlo)"
-        return f"{self.depth} (Monte Carlo band, {self.band_samples} samples per probed pair)"
+            text = f"{self.depth} (tolerance band of each part, no Monte Carlo"
+        else:
+            text = f"{self.depth} (Monte Carlo band, {self.band_samples} samples per probed pair"
+        return text + ("" if self.advice else "; no bench-instrument advice") + ")"
