@@ -474,7 +474,8 @@ def time_grid(rates: np.ndarray, t_end: float, per_decade: int = 8, max_points: 
         n = int(np.ceil(per_decade * span / np.log(10.0))) + 1
         grid = np.empty(n + 1)
         grid[0] = 0.0
-        grid[1:] = t_lo * np.exp(np.linspace(0.0, span, n))
+        # np.linspace(0, span, n), without its overhead (the last point is set below)
+        grid[1:] = t_lo * np.exp(np.arange(n) * (span / (n - 1)))
         grid[-1] = t_end
     if not np.iscomplexobj(rates):
         return grid
@@ -485,7 +486,10 @@ def time_grid(rates: np.ndarray, t_end: float, per_decade: int = 8, max_points: 
         span_t = min(t_end, 10.0 / decay_or_inf(r.real))
         k = int(min(budget, np.ceil(8 * span_t / period)))
         if k > 2:
-            parts.append(np.linspace(0.0, min(span_t, k * period / 8), k + 1))
+            stop = min(span_t, k * period / 8)
+            points = np.arange(k + 1) * (stop / k)
+            points[-1] = stop
+            parts.append(points)
             budget -= k
     return np.unique(np.concatenate(parts)) if len(parts) > 1 else grid
 
@@ -549,7 +553,7 @@ def _search_chunk(combo, grid: np.ndarray, start: int, stop: int) -> tuple[float
         for k in rows:
             f = rows_f.get(k)
             if f is None:
-                f = rows_f[k] = combo.row(int(k))
+                f = rows_f[k] = _remembered(combo.row(int(k)))
             fa, fb = f(a), f(b)
             if fb < 0:
                 continue
@@ -565,3 +569,17 @@ def _search_chunk(combo, grid: np.ndarray, start: int, stop: int) -> tuple[float
         if best is not None:
             return best
     return None
+
+
+def _remembered(f):
+    """``f`` that keeps its values: ``brentq`` evaluates the bracket's ends
+    again, and the root once more after it."""
+    memo: dict = {}
+
+    def g(t: float) -> float:
+        v = memo.get(t)
+        if v is None:
+            v = memo[t] = f(t)
+        return v
+
+    return g
