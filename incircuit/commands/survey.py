@@ -122,7 +122,7 @@ def survey_and_report(board: Board, profile: Profile, settings: Settings, out: P
             changed.what_if = compare(result, changed, changes)
             result = changed
     try:
-        files = write_report(out, result.to_dict(), result.traces)
+        files = write_report(out, result.to_dict(), result.traces, jobs=settings.jobs)
     except OSError as error:
         raise InputError(f"cannot write the report: {error.strerror or error}", str(out)) from None
     return result, files

@@ -152,7 +152,9 @@ def _detail(rec: Mapping, svg: str | None, plot_note: str) -> str:
     right = [
         "<h3>Faults</h3>" + _faults_table(rec.get("faults") or []),
         "<h3>Lift plan (best first)</h3>" + _lift_table(rec.get("lift") or []),
-        "<h3>Bench instruments</h3>" + _list(rec.get("advice_text") or []),
+        "<h3>Bench instruments</h3>" + (_list(rec.get("advice_text") or []) if rec.get("advice_text")
+                                         else "<p>-</p>" if rec.get("status") != "ok" else
+                                         "<p>No bench instrument modelled for this part, or the advice was left out (--no-advice).</p>"),
     ]
     out.append(f'<div class="detail-grid"><div>{"".join(left)}</div><div>{"".join(right)}</div></div>')
     if svg:

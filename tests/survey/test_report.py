@@ -147,3 +147,9 @@ def test_error_rows_show_their_error():
     page = render_html(data)
     assert "solver &lt;gave&gt; up" in page and "try ngspice" in page
     assert 'data-verdict="error"' in page
+
+
+def test_plots_over_processes_are_the_same_bytes(masked_survey, tmp_path):
+    write_report(tmp_path / "one", masked_survey.to_dict(), masked_survey.traces, jobs=1)
+    write_report(tmp_path / "two", masked_survey.to_dict(), masked_survey.traces, jobs=2)
+    assert _files(tmp_path / "one") == _files(tmp_path / "two")
