@@ -121,6 +121,7 @@ class AnalyticSession:
         self._ctrl_gain = np.array([gain for _, _, _, gain in ctrl], dtype=float)
         self._statics: dict = {}
         self._decs: dict = {}
+        self._Lminv: np.ndarray | None = None
         self._out_names = [p for p in names]
 
     # -- matrices for one (drive, segments) --------------------------------
@@ -156,7 +157,10 @@ class AnalyticSession:
         dec = self._decs.get(key)
         if dec is None:
             st = self._static(dkey, gdrive)
-            dec = (general_decompose if len(self._ctrl_j) else decompose)(st, self.network.Lm)
+            if self._Lminv is None:
+                Lm = self.network.Lm
+                self._Lminv = np.linalg.inv(Lm) if len(Lm) else Lm
+            dec = (general_decompose if len(self._ctrl_j) else decompose)(st, self.network.Lm, self._Lminv)
             self._decs[key] = dec
         return dec
 

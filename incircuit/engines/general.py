@@ -59,7 +59,7 @@ class GeneralStatic(Static):
 class GeneralModal(Modal):
     """Modal form of ``E z' = -Ablk z + Bmap b`` by ``eig`` (see the module text)."""
 
-    def __init__(self, st: GeneralStatic, Lm: np.ndarray):  # noqa: D107 - no super(): all rebuilt
+    def __init__(self, st: GeneralStatic, Lm: np.ndarray, Lminv: np.ndarray | None = None):  # noqa: D107 - no super(): all rebuilt
         sp_ = st.split
         Cr = sp_.Cr
         nr, m = Cr.shape[0], Lm.shape[0]
@@ -80,9 +80,9 @@ class GeneralModal(Modal):
             Ablk[nr:, :nr] = -(st.A.T @ st.P)
             Ablk[nr:, nr:] = -(st.A.T @ st.Pi)
             Einv = np.zeros((N, N))
-            Einv[:nr, :nr] = sp_.Linv.T @ sp_.Linv
+            Einv[:nr, :nr] = sp_.Crinv
             if m:
-                Einv[nr:, nr:] = np.linalg.inv(Lm)
+                Einv[nr:, nr:] = np.linalg.inv(Lm) if Lminv is None else Lminv
             self.F = -(Einv @ Ablk)
             self.gmap = Einv @ Bmap
             lam, V = np.linalg.eig(self.F)
@@ -125,7 +125,7 @@ def _well_conditioned(V: np.ndarray, Vinv: np.ndarray) -> bool:
     return bool(np.isfinite(cond) and cond < EIG_COND_MAX)
 
 
-def general_decompose(st: GeneralStatic, Lm: np.ndarray) -> GeneralModal | Exponential:
+def general_decompose(st: GeneralStatic, Lm: np.ndarray, Lminv: np.ndarray | None = None) -> GeneralModal | Exponential:
     """The modal form, or the matrix-exponential fallback (as :func:`.solve.decompose`)."""
-    modal = GeneralModal(st, Lm)
+    modal = GeneralModal(st, Lm, Lminv)
     return modal if modal.ok else Exponential(st, modal)

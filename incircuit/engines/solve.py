@@ -27,6 +27,7 @@ which also holds for a zero eigenvalue (a loop of inductors).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 import scipy.linalg as sla
@@ -55,6 +56,11 @@ class Split:
     Lsel: np.ndarray
     Cr: np.ndarray
     Linv: np.ndarray
+
+    @cached_property
+    def Crinv(self) -> np.ndarray:
+        """``Cr^-1 = Linv^T Linv`` (computed once per split)."""
+        return self.Linv.T @ self.Linv
 
 
 def cap_islands(C: np.ndarray, grounded: np.ndarray) -> list[tuple[np.ndarray, bool, list[tuple[int, int]]]]:
@@ -194,7 +200,7 @@ class Static:
 class Modal:
     """Modal form ``x(t) = Xc b + Re M (e^{lam t} zeta0 + t phi1(lam t) gamma)``."""
 
-    def __init__(self, st: Static, Lm: np.ndarray):
+    def __init__(self, st: Static, Lm: np.ndarray, Lminv: np.ndarray | None = None):
         sp_ = st.split
         Cr = sp_.Cr
         nr, m = Cr.shape[0], Lm.shape[0]
@@ -221,8 +227,9 @@ class Modal:
         K = Ar - st.Grn @ HAn
         D = st.An.T @ HAn
         # E = blockdiag(Cr, Lm): invert by blocks (Cr^-1 = Linv^T Linv)
-        Crinv = sp_.Linv.T @ sp_.Linv
-        Lminv = np.linalg.inv(Lm)
+        Crinv = sp_.Crinv
+        if Lminv is None:
+            Lminv = np.linalg.inv(Lm)
         self.F = -np.vstack([Crinv @ np.hstack([S, K]), Lminv @ np.hstack([-K.T, D])])
         self.gmap = np.vstack([Crinv @ st.P.T, Lminv @ (HAn.T @ sp_.Tn.T)])
         self.Cz = np.hstack([st.P, st.Pi])
@@ -447,9 +454,12 @@ class ExpCombo:
         return lambda t: float(self(np.array([t]))[0, k])
 
 
-def decompose(st: Static, Lm: np.ndarray) -> Modal | Exponential:
-    """The modal form, or the matrix-exponential fallback when eigenvectors are ill-conditioned."""
-    modal = Modal(st, Lm)
+def decompose(st: Static, Lm: np.ndarray, Lminv: np.ndarray | None = None) -> Modal | Exponential:
+    """The modal form, or the matrix-exponential fallback when eigenvectors are ill-conditioned.
+
+    ``Lminv``: ``Lm^-1`` when the caller keeps it (a session decomposes many
+    times with one ``Lm``)."""
+    modal = Modal(st, Lm, Lminv)
     return modal if modal.ok else Exponential(st, modal)
 
 
