@@ -112,7 +112,7 @@ def main(argv: list[str] | None = None) -> int:
 
     started = time.perf_counter()
     folder = args.report or tempfile.mkdtemp(prefix="bench-survey-")
-    files = write_report(folder, result.to_dict(), result.traces)
+    files = write_report(folder, result.to_dict(), result.traces, jobs=args.jobs)
     t_report = time.perf_counter() - started
     heap_peak = tracemalloc.get_traced_memory()[1]
     tracemalloc.stop()

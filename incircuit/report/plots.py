@@ -45,10 +45,13 @@ _COLOURS = ("#1f5fa8", "#c2541d", "#2e7d32")
 _WIDTH_IN = 7.2
 #: Steps whose name starts with one of these are drawn without a label (resets).
 _QUIET = ("discharge", "initial discharge")
+#: Longest step label (characters) under the axis.
+_LABEL_CHARS = 24
 
 
 def _short(name: str) -> str:
-    return re.sub(r"\s*\(.*?\)", "", name).strip()
+    text = re.sub(r"\s*\(.*?\)", "", name).strip()
+    return text if len(text) <= _LABEL_CHARS else text[:_LABEL_CHARS - 1] + "\u2026"
 
 
 def _panel(ax, steps: Sequence[dict] | None, title: str, probes: Sequence[str]) -> None:
@@ -95,7 +98,7 @@ def trace_svg(isolated: Sequence[dict] | None, in_circuit: Sequence[dict] | None
     top = max([float(np.nanmax(np.asarray(s["v"], dtype=float))) for run in (isolated, in_circuit)
                for s in (run or ()) if np.asarray(s["v"]).size] or [5.0])
     with matplotlib.rc_context(PLOT_STYLE):
-        fig = Figure(figsize=(_WIDTH_IN, 5.6))
+        fig = Figure(figsize=(_WIDTH_IN, 6.2))
         FigureCanvasSVG(fig)
         axes = fig.subplots(2, 1, sharey=True)
         _panel(axes[0], isolated, f"{part} alone", probes)
@@ -103,7 +106,9 @@ def trace_svg(isolated: Sequence[dict] | None, in_circuit: Sequence[dict] | None
         for ax in axes:
             ax.set_ylim(-0.1, max(top, 1.0) * 1.08)
             ax.grid(axis="y", color="#dddddd", lw=0.5)
-        fig.tight_layout(h_pad=0.6)
+        # fixed margins (a tight layout would draw the figure twice): room for the
+        # rotated step names under each panel and the legend above it
+        fig.subplots_adjust(left=0.075, right=0.985, top=0.95, bottom=0.19, hspace=0.82)
         buffer = io.StringIO()
         fig.savefig(buffer, format="svg", metadata={"Date": None})
     text = buffer.getvalue()
