@@ -27,7 +27,14 @@ COMMANDS = {
 }
 
 
-def build_parser() -> argparse.ArgumentParser:
+def _chosen(argv: list[str]) -> str | None:
+    """The command named on the line (the first word that is one), if any."""
+    return next((a for a in argv if a in COMMANDS), None)
+
+
+def build_parser(only: str | None = None) -> argparse.ArgumentParser:
+    """The parser; with ``only``, just that command's module is imported
+    (the others keep their one-line help), so start-up stays quick."""
     parser = argparse.ArgumentParser(
         prog="incircuit",
         description="Predict and judge what a three-probe component tester reads "
@@ -35,6 +42,9 @@ def build_parser() -> argparse.ArgumentParser:
     )
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", required=True)
     for name, help_text in COMMANDS.items():
+        if only is not None and name != only:
+            sub.add_parser(name, help=help_text)
+            continue
         module = import_module(f".commands.{name}", __package__)
         p = sub.add_parser(name, help=help_text, description=module.__doc__)
         module.add_arguments(p)
@@ -43,7 +53,8 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: list[str] | None = None) -> int:
-    parser = build_parser()
+    argv = sys.argv[1:] if argv is None else list(argv)
+    parser = build_parser(_chosen(argv))
     args = parser.parse_args(argv)
     try:
         with warnings.catch_warnings():
