@@ -7,7 +7,7 @@ pin-role file ``netlists/<name>.pins.toml`` (roles of its unmodelled chips)
 when there is one.
 
 >>> sorted(demo_board_paths())
-['power-stage', 'relay-driver', 'sensor-frontend']
+['exported-controller', 'power-stage', 'relay-driver', 'sensor-frontend']
 >>> DEFAULT_DEMO in demo_board_paths()
 True
 """
@@ -34,6 +34,7 @@ DEMO_BOARDS = {
     "power-stage": "fused diode bridge, reservoir capacitors and bleeder, regulator, zener rail, LED",
     "sensor-frontend": "unpowered op-amps with protection diodes, clamps, RC filters, reference divider",
     "relay-driver": "NPN relay switch with flyback diode, MOSFET fan switch with body diode and shunt",
+    "exported-controller": "as a schematic export leaves it: undefined chips and connectors, with a pin-role file",
 }
 
 #: The board that ``incircuit demo`` surveys.
