@@ -298,7 +298,8 @@ def render_html(data: Mapping, plots: Mapping[str, str] | None = None, plot_note
     meta = " &middot; ".join(_e(x) for x in (
         data.get("file"), f"engine {data.get('engine')}" if data.get("engine") else None,
         f"tester {data.get('tester')}" if data.get("tester") else None,
-        f"depth {data.get('depth')}" if data.get("depth") else None) if x)
+        f"depth {data.get('depth')}" if data.get("depth") else None,
+        "changed board: see What if" if data.get("what_if") else None) if x)
     counts = data.get("counts") or {}
     buttons = ['<button type="button" data-verdict="all" aria-pressed="true">all</button>']
     buttons += [f'<button type="button" data-verdict="{v}" aria-pressed="false">{v} ({counts.get(v, 0)})</button>'
