@@ -90,21 +90,7 @@ class GeneralModal(Modal):
             self.F = np.zeros((0, 0))
             self.gmap = np.zeros((0, Bmap.shape[1]))
             lam, V = np.zeros(0, dtype=complex), np.zeros((0, 0), dtype=complex)
-        self.real = False
-        self.ok = False
-        try:
-            Vinv = np.linalg.inv(V) if len(V) else V
-        except np.linalg.LinAlgError:
-            return
-        self.ok = _well_conditioned(V, Vinv)
-        if not self.ok:
-            return
-        self.lam = lam
-        self.M = self.Cz @ V
-        self.Mi = V[nr:, :]
-        self.Wx = Vinv[:, :nr] @ sp_.Lsel
-        self.Wi = Vinv[:, nr:]
-        self.Gam = Vinv @ self.gmap
+        self._adopt(lam, V, sp_, _well_conditioned)
 
 
 def _well_conditioned(V: np.ndarray, Vinv: np.ndarray) -> bool:

@@ -27,6 +27,7 @@ which also holds for a zero eigenvalue (a loop of inductors).
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Callable
 from functools import cached_property
 
 import numpy as np
@@ -235,17 +236,23 @@ class Modal:
         self.Cz = np.hstack([st.P, st.Pi])
         self.nr = nr
         lam, V = np.linalg.eig(self.F)
+        self._adopt(lam, V, sp_, _one_norm_conditioned)
+
+    def _adopt(self, lam: np.ndarray, V: np.ndarray, sp_: Split,
+               conditioned: Callable[[np.ndarray, np.ndarray], bool]) -> None:
+        """Take the eigenpairs ``lam, V`` of ``F`` as the modal basis when
+        ``conditioned(V, V^-1)`` holds; otherwise ``ok`` stays False and the
+        caller falls back to the matrix exponential."""
         self.real = False
         self.ok = False
         try:
-            Vinv = np.linalg.inv(V)
+            Vinv = np.linalg.inv(V) if len(V) else V
         except np.linalg.LinAlgError:
             return
-        # 1-norm condition number of the eigenvectors (within a factor N of the 2-norm one)
-        cond = np.abs(V).sum(axis=0).max() * np.abs(Vinv).sum(axis=0).max()
-        self.ok = bool(np.isfinite(cond) and cond < EIG_COND_MAX)
+        self.ok = conditioned(V, Vinv)
         if not self.ok:
             return
+        nr = self.nr
         self.lam = lam
         self.M = self.Cz @ V
         self.Mi = V[nr:, :]
@@ -257,6 +264,13 @@ class Modal:
         zeta = self.Wx @ x0 + self.Wi @ i0
         gam = self.Gam @ b
         return ModalTrajectory(self, zeta, gam, self.Xc @ b)
+
+
+def _one_norm_conditioned(V: np.ndarray, Vinv: np.ndarray) -> bool:
+    """1-norm condition number of the eigenvectors (within a factor N of the
+    2-norm one) below ``EIG_COND_MAX``."""
+    cond = np.abs(V).sum(axis=0).max() * np.abs(Vinv).sum(axis=0).max()
+    return bool(np.isfinite(cond) and cond < EIG_COND_MAX)
 
 
 def _phi_t(lam: np.ndarray, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
