@@ -42,10 +42,11 @@ from ..errors import EngineError
 from ..graph import between
 from ..model import Board, Part
 from ..units import format_value
+from ..units import format_value
 from .band import part_tolerance
 from .runs import with_model_param
 from .thresholds import (
-    BENCH_MIN_SENSITIVITY, CONDUCTING_CURRENT, MAX_GUARD_NETS, METER_JUNCTION_SHARE,
+    BENCH_MAX_RELATIVE_UNCERTAINTY, BENCH_MIN_SENSITIVITY, CONDUCTING_CURRENT, MAX_GUARD_NETS, METER_JUNCTION_SHARE,
     PERTURBATION, SEMICONDUCTOR_PARAMETER,
 )
 
@@ -119,7 +120,12 @@ def _judge(profile: BenchProfile, part: Part, reading: BenchReading, expected: f
         low = high = None
         ok = False
     else:
+        if reading.accuracy > BENCH_MAX_RELATIVE_UNCERTAINTY * abs(expected):
+            caveats.append(f"its accuracy here (+-{format_value(reading.accuracy, reading.unit)}) is too wide "
+                           f"to judge {part.name}")
         low = expected * (1 - tol[0]) - reading.accuracy
+        if expected >= 0:
+            low = max(low, 0.0)  # an expected ohm, farad or henry value: the window starts at zero
         high = expected * (1 + tol[1]) + reading.accuracy
         ok = low <= reading.value <= high and not caveats
         if ok and follows is not None:

@@ -30,7 +30,7 @@ __all__ = [
     "VERDICTS", "VERDICT_RANK", "MASKED_SENSITIVITY", "PERTURBATION", "JUNCTION_IS_FACTOR",
     "SEMICONDUCTOR_PARAMETER", "DEFAULT_TOLERANCE", "READING_TOLERANCE", "DETECT_MARGIN",
     "CONDUCTING_CURRENT", "CURRENT_SHARE_SHOWN", "MAX_NEIGHBOUR_PARTS", "MAX_GUARD_NETS",
-    "METER_JUNCTION_SHARE", "BENCH_MIN_SENSITIVITY", "ESR_COUNTS", "SELF_DISCHARGE_MARGIN", "TOLERANCE_STEP_RANGE",
+    "METER_JUNCTION_SHARE", "BENCH_MIN_SENSITIVITY", "BENCH_MAX_RELATIVE_UNCERTAINTY", "ESR_COUNTS", "SELF_DISCHARGE_MARGIN", "TOLERANCE_STEP_RANGE",
 ]
 
 #: Verdicts, best first.
@@ -118,6 +118,12 @@ METER_JUNCTION_SHARE = 0.01
 #: own moves one to one with it; below 0.8 the parts around it make up a
 #: fifth or more of the reading and the match is a coincidence.
 BENCH_MIN_SENSITIVITY = 0.8
+
+#: A bench reading whose stated accuracy is wider than this fraction of the
+#: part's value cannot judge the part, however well it matches: e.g. a
+#: capacitance read with a loss factor far above 1 (a low resistance beside
+#: the capacitor), where the meter's accuracy grows with the loss factor.
+BENCH_MAX_RELATIVE_UNCERTAINTY = 0.25
 
 #: The lift plan tries at most this many neighbour parts (nearest paths
 #: first): each costs one identification run, and more than a few
